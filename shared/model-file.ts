@@ -1,0 +1,350 @@
+import { z } from 'zod';
+
+/**
+ * The Proofline model file ("proofline/model", version 1): one JSON document per model, fault tree or
+ * state (Markov) model. Times are in hours and rates per hour. docs/model-format.md describes every field
+ * and its semantics; this schema is the single definition used by the client, the server and the solver.
+ */
+
+const MODEL_ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9_.\-]{0,63}$/;
+
+export const modelItemId = z
+  .string()
+  .regex(MODEL_ID_PATTERN, 'an id is 1-64 letters, digits, "_", "." or "-", starting with a letter or digit');
+
+const hours = z.number().finite().nonnegative();
+const positiveHours = z.number().finite().positive();
+const rate = z.number().finite().nonnegative();
+const fraction = z.number().finite().min(0).max(1);
+
+export const demandMode = z.enum(['low', 'high', 'continuous']);
+export type DemandMode = z.infer<typeof demandMode>;
+
+export const mission = z.strictObject({
+  hours: positiveHours,
+  demand: demandMode,
+});
+
+export const proofTest = z.strictObject({
+  intervalHours: positiveHours,
+  firstHours: positiveHours.optional(),
+  coverage: fraction.optional(),
+  durationHours: hours.optional(),
+  downDuringTest: z.boolean().optional(),
+});
+export type ProofTest = z.infer<typeof proofTest>;
+
+export const partialTest = z.strictObject({
+  intervalHours: positiveHours,
+  firstHours: positiveHours.optional(),
+  coverage: fraction,
+});
+export type PartialTest = z.infer<typeof partialTest>;
+
+export const rateEvent = z.strictObject({
+  id: modelItemId,
+  label: z.string().max(200).optional(),
+  lambdaDU: rate,
+  lambdaDD: rate.optional(),
+  lambdaS: rate.optional(),
+  mttrHours: hours.optional(),
+  proofTest: proofTest.optional(),
+  partialTest: partialTest.optional(),
+});
+
+export const probabilityEvent = z.strictObject({
+  id: modelItemId,
+  label: z.string().max(200).optional(),
+  probability: fraction,
+});
+
+/** A basic event: failure rates with a test plan, or a constant probability on demand. */
+export const basicEvent = z.union([rateEvent, probabilityEvent]);
+export type RateEvent = z.infer<typeof rateEvent>;
+export type ProbabilityEvent = z.infer<typeof probabilityEvent>;
+export type BasicEvent = z.infer<typeof basicEvent>;
+
+export function isProbabilityEvent(event: BasicEvent): event is ProbabilityEvent {
+  return 'probability' in event;
+}
+
+export const gateType = z.enum(['or', 'and', 'atLeast']);
+export type GateType = z.infer<typeof gateType>;
+
+export const gate = z.strictObject({
+  id: modelItemId,
+  label: z.string().max(200).optional(),
+  type: gateType,
+  /** For `atLeast`: the gate fails when at least k of its inputs have failed. */
+  k: z.number().int().positive().optional(),
+  inputs: z.array(modelItemId).min(1),
+});
+export type Gate = z.infer<typeof gate>;
+
+export const commonCauseGroup = z.strictObject({
+  id: modelItemId,
+  label: z.string().max(200).optional(),
+  members: z.array(modelItemId).min(2),
+  beta: fraction,
+  betaD: fraction.optional(),
+  model: z.enum(['beta', 'pds']),
+  /** PDS method only: C_MooN given explicitly instead of taken from the table. */
+  factor: z.number().finite().nonnegative().optional(),
+});
+export type CommonCauseGroup = z.infer<typeof commonCauseGroup>;
+
+export const layout = z.record(z.string(), z.strictObject({ x: z.number().finite(), y: z.number().finite() }));
+
+const header = {
+  format: z.literal('proofline/model'),
+  version: z.literal(1),
+  name: z.string().trim().min(1).max(200),
+  description: z.string().max(5000).optional(),
+  mission,
+  layout: layout.optional(),
+};
+
+export const faultTreeModelShape = z.strictObject({
+  ...header,
+  kind: z.literal('fault-tree'),
+  events: z.array(basicEvent).min(1),
+  gates: z.array(gate),
+  ccf: z.array(commonCauseGroup).optional(),
+  top: modelItemId,
+});
+
+export const markovState = z.strictObject({
+  id: modelItemId,
+  label: z.string().max(200).optional(),
+  /** Initial probability; the initial values of all states must sum to 1. */
+  initial: fraction.optional(),
+  /** The function cannot act on a demand in this state: PFD(t) is the probability of such states. */
+  down: z.boolean().optional(),
+});
+export type MarkovState = z.infer<typeof markovState>;
+
+export const markovTransition = z.strictObject({
+  from: modelItemId,
+  to: modelItemId,
+  rate: rate,
+  label: z.string().max(200).optional(),
+});
+export type MarkovTransition = z.infer<typeof markovTransition>;
+
+export const testMove = z.strictObject({
+  from: modelItemId,
+  to: modelItemId,
+  probability: fraction,
+});
+
+export const markovTest = z.strictObject({
+  label: z.string().max(200).optional(),
+  intervalHours: positiveHours,
+  firstHours: positiveHours.optional(),
+  moves: z.array(testMove).min(1),
+});
+export type MarkovTest = z.infer<typeof markovTest>;
+
+export const markovModelShape = z.strictObject({
+  ...header,
+  kind: z.literal('markov'),
+  states: z.array(markovState).min(1),
+  transitions: z.array(markovTransition),
+  tests: z.array(markovTest).optional(),
+});
+
+type Issue = { path: (string | number)[]; message: string };
+
+function duplicateIds(ids: { id: string }[], listName: string): Issue[] {
+  const seen = new Map<string, number>();
+  const issues: Issue[] = [];
+  ids.forEach((item, index) => {
+    const first = seen.get(item.id);
+    if (first !== undefined) {
+      issues.push({ path: [listName, index, 'id'], message: `duplicate id "${item.id}" (also ${listName}[${first}])` });
+    } else {
+      seen.set(item.id, index);
+    }
+  });
+  return issues;
+}
+
+/** Reference checks of a fault tree: unknown ids, k out of range, cycles, CCF members, tests vs mission. */
+export function faultTreeIssues(model: z.infer<typeof faultTreeModelShape>): Issue[] {
+  const issues: Issue[] = [...duplicateIds(model.events, 'events'), ...duplicateIds(model.gates, 'gates')];
+  const eventIds = new Set(model.events.map((event) => event.id));
+  const gateIds = new Set(model.gates.map((item) => item.id));
+  model.gates.forEach((item, index) => {
+    if (eventIds.has(item.id)) issues.push({ path: ['gates', index, 'id'], message: `"${item.id}" is both an event and a gate` });
+    item.inputs.forEach((input, inputIndex) => {
+      if (!eventIds.has(input) && !gateIds.has(input)) {
+        issues.push({ path: ['gates', index, 'inputs', inputIndex], message: `gate "${item.id}" has unknown input "${input}"` });
+      }
+    });
+    if (new Set(item.inputs).size !== item.inputs.length) {
+      issues.push({ path: ['gates', index, 'inputs'], message: `gate "${item.id}" lists an input twice` });
+    }
+    if (item.type === 'atLeast') {
+      if (item.k === undefined) {
+        issues.push({ path: ['gates', index, 'k'], message: `voting gate "${item.id}" needs k (fails when at least k inputs fail)` });
+      } else if (item.k > item.inputs.length) {
+        issues.push({ path: ['gates', index, 'k'], message: `voting gate "${item.id}" has k = ${item.k} but only ${item.inputs.length} inputs` });
+      }
+    } else if (item.k !== undefined) {
+      issues.push({ path: ['gates', index, 'k'], message: `k is only allowed on "atLeast" gates ("${item.id}" is "${item.type}")` });
+    }
+  });
+  if (!gateIds.has(model.top) && !eventIds.has(model.top)) {
+    issues.push({ path: ['top'], message: `top "${model.top}" is not a gate or event of this model` });
+  }
+  const cycle = findGateCycle(model.gates);
+  if (cycle) issues.push({ path: ['gates'], message: `the gates form a cycle: ${cycle.join(' -> ')}` });
+
+  model.events.forEach((event, index) => {
+    if (isProbabilityEvent(event)) return;
+    for (const [key, plan] of [['proofTest', event.proofTest], ['partialTest', event.partialTest]] as const) {
+      if (!plan) continue;
+      if (plan.intervalHours > model.mission.hours) {
+        issues.push({ path: ['events', index, key, 'intervalHours'], message: `event "${event.id}": ${key} interval ${plan.intervalHours} h is longer than the mission (${model.mission.hours} h)` });
+      }
+      if (plan.firstHours !== undefined && plan.firstHours > model.mission.hours) {
+        issues.push({ path: ['events', index, key, 'firstHours'], message: `event "${event.id}": first ${key} at ${plan.firstHours} h is after the mission end (${model.mission.hours} h)` });
+      }
+    }
+    const test = event.proofTest;
+    if (test && test.durationHours !== undefined && test.durationHours >= test.intervalHours) {
+      issues.push({ path: ['events', index, 'proofTest', 'durationHours'], message: `event "${event.id}": the proof test lasts as long as its interval or longer` });
+    }
+  });
+
+  const inGroup = new Map<string, string>();
+  (model.ccf ?? []).forEach((group, index) => {
+    group.members.forEach((member, memberIndex) => {
+      const event = model.events.find((candidate) => candidate.id === member);
+      if (!event) {
+        issues.push({ path: ['ccf', index, 'members', memberIndex], message: `common-cause group "${group.id}" has unknown member "${member}"` });
+      } else if (isProbabilityEvent(event)) {
+        issues.push({ path: ['ccf', index, 'members', memberIndex], message: `common-cause group "${group.id}": member "${member}" has a fixed probability, not rates` });
+      }
+      const other = inGroup.get(member);
+      if (other !== undefined && other !== group.id) {
+        issues.push({ path: ['ccf', index, 'members', memberIndex], message: `event "${member}" is in two common-cause groups ("${other}" and "${group.id}")` });
+      }
+      inGroup.set(member, group.id);
+    });
+    if (new Set(group.members).size !== group.members.length) {
+      issues.push({ path: ['ccf', index, 'members'], message: `common-cause group "${group.id}" lists a member twice` });
+    }
+    if (group.factor !== undefined && group.model !== 'pds') {
+      issues.push({ path: ['ccf', index, 'factor'], message: `common-cause group "${group.id}": factor is only used with model "pds"` });
+    }
+  });
+  issues.push(...duplicateIds(model.ccf ?? [], 'ccf'));
+  return issues;
+}
+
+function findGateCycle(gates: Gate[]): string[] | undefined {
+  const byId = new Map(gates.map((item) => [item.id, item]));
+  const state = new Map<string, 'open' | 'done'>();
+  const stack: string[] = [];
+  const visit = (id: string): string[] | undefined => {
+    const mark = state.get(id);
+    if (mark === 'done') return undefined;
+    if (mark === 'open') return [...stack.slice(stack.indexOf(id)), id];
+    const node = byId.get(id);
+    if (!node) return undefined;
+    state.set(id, 'open');
+    stack.push(id);
+    for (const input of node.inputs) {
+      const found = visit(input);
+      if (found) return found;
+    }
+    stack.pop();
+    state.set(id, 'done');
+    return undefined;
+  };
+  for (const item of gates) {
+    const found = visit(item.id);
+    if (found) return found;
+  }
+  return undefined;
+}
+
+/** Reference checks of a state model: unknown states, self transitions, initial distribution, test rows. */
+export function markovIssues(model: z.infer<typeof markovModelShape>): Issue[] {
+  const issues: Issue[] = [...duplicateIds(model.states, 'states')];
+  const stateIds = new Set(model.states.map((state) => state.id));
+  const initialSum = model.states.reduce((sum, state) => sum + (state.initial ?? 0), 0);
+  if (Math.abs(initialSum - 1) > 1e-9) {
+    issues.push({ path: ['states'], message: `the initial probabilities sum to ${initialSum}, not 1` });
+  }
+  const seenPairs = new Map<string, number>();
+  model.transitions.forEach((transition, index) => {
+    for (const end of ['from', 'to'] as const) {
+      if (!stateIds.has(transition[end])) {
+        issues.push({ path: ['transitions', index, end], message: `transition ${index} refers to unknown state "${transition[end]}"` });
+      }
+    }
+    if (transition.from === transition.to) {
+      issues.push({ path: ['transitions', index, 'to'], message: `transition ${index} goes from "${transition.from}" into the same state` });
+    }
+    const pair = `${transition.from}\u0000${transition.to}`;
+    const first = seenPairs.get(pair);
+    if (first !== undefined) {
+      issues.push({ path: ['transitions', index], message: `transition ${index} repeats "${transition.from}" -> "${transition.to}" (also transitions[${first}])` });
+    } else {
+      seenPairs.set(pair, index);
+    }
+  });
+  (model.tests ?? []).forEach((test, testIndex) => {
+    if (test.intervalHours > model.mission.hours) {
+      issues.push({ path: ['tests', testIndex, 'intervalHours'], message: `test ${testIndex}: interval ${test.intervalHours} h is longer than the mission (${model.mission.hours} h)` });
+    }
+    const rows = new Map<string, number>();
+    test.moves.forEach((move, moveIndex) => {
+      for (const end of ['from', 'to'] as const) {
+        if (!stateIds.has(move[end])) {
+          issues.push({ path: ['tests', testIndex, 'moves', moveIndex, end], message: `test ${testIndex} moves ${end} unknown state "${move[end]}"` });
+        }
+      }
+      rows.set(move.from, (rows.get(move.from) ?? 0) + move.probability);
+    });
+    for (const [from, sum] of rows) {
+      if (Math.abs(sum - 1) > 1e-9) {
+        issues.push({ path: ['tests', testIndex, 'moves'], message: `test ${testIndex}: the moves out of "${from}" sum to ${sum}, not 1` });
+      }
+    }
+  });
+  return issues;
+}
+
+function withIssues<T extends z.ZodType>(shape: T, check: (model: z.infer<T>) => Issue[]) {
+  return shape.superRefine((model, context) => {
+    for (const issue of check(model)) context.addIssue({ code: 'custom', path: issue.path, message: issue.message });
+  });
+}
+
+export const faultTreeModel = withIssues(faultTreeModelShape, faultTreeIssues);
+export const markovModel = withIssues(markovModelShape, markovIssues);
+
+/** A whole model file, either kind, with every reference check applied. */
+export const modelFile = z.discriminatedUnion('kind', [faultTreeModelShape, markovModelShape]).superRefine((model, context) => {
+  const issues = model.kind === 'fault-tree' ? faultTreeIssues(model) : markovIssues(model);
+  for (const issue of issues) context.addIssue({ code: 'custom', path: issue.path, message: issue.message });
+});
+
+export type FaultTreeModel = z.infer<typeof faultTreeModelShape>;
+export type MarkovModel = z.infer<typeof markovModelShape>;
+export type ModelFile = z.infer<typeof modelFile>;
+
+/** Formats zod issues as "path: message" lines, the path written as in the file (events[2].lambdaDU). */
+export function describeIssues(error: z.ZodError): string[] {
+  return error.issues.map((issue) => `${formatPath(issue.path)}: ${issue.message}`);
+}
+
+export function formatPath(path: readonly PropertyKey[]): string {
+  if (path.length === 0) return '(file)';
+  return path
+    .map((part, index) => (typeof part === 'number' ? `[${part}]` : index === 0 ? String(part) : `.${String(part)}`))
+    .join('');
+}
