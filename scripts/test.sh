@@ -6,8 +6,9 @@ set -euo pipefail
 cd "$(dirname "${BASH_SOURCE[0]}")/.."
 bash scripts/ensure-deps.sh
 source scripts/db.sh
-db_start proofline_test
+db_start proofline_test proofline_e2e
 export DATABASE_URL="$DB_BASE_URL/proofline_test"
+export E2E_DATABASE_URL="$DB_BASE_URL/proofline_e2e"
 export NODE_ENV=test
 
 echo "== type check (server, solver, shared, tests)"
