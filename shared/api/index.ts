@@ -1,0 +1,49 @@
+/**
+ * The Proofline HTTP API contract, shared by the Angular client and the Express server.
+ * Every body and query is parsed with the schema named here; every response of the server matches the
+ * schema named here. JSON only; session cookie auth (`proofline.sid`, httpOnly, SameSite=Strict).
+ * Failures: `{ error: { code, message, details } }` (errors.ts): 400 validation_failed (details.issues
+ * names each field), 401 unauthenticated / invalid_credentials, 403 forbidden, 404 not_found (also for
+ * unknown /api routes, and for a project or SIF the user may not see), 409 version_conflict /
+ * already_exists / conflict, 429 rate_limited, 503 service_unavailable, 500 internal_error.
+ *
+ * Who may do what
+ * - Site admin (users.isAdmin): manages accounts; sees every project (myRole null unless a member), may
+ *   manage any project's members, edit its details and archive it. An admin edits SIFs only through a
+ *   project role.
+ * - Any signed-in user may create a project and becomes its lead.
+ * - Project roles: lead (members, project details, archive, everything an engineer does, approve),
+ *   engineer (create, edit, archive SIFs; status draft / in-review / superseded), reviewer (read; status
+ *   in-review -> approved or in-review -> draft, nothing else), viewer (read).
+ * - A user who is neither a member nor an admin gets 404 for the project and everything in it.
+ *
+ * Routes                                                body / query            response
+ * POST   /api/auth/sign-in                              signInBody              200 user (new session)
+ * POST   /api/auth/sign-out                             -                       204
+ * GET    /api/auth/me                                   -                       200 user | 401
+ * POST   /api/auth/password                             changePasswordBody      204 (other sessions end)
+ * GET    /api/users                  signed in          -                       200 userList
+ * POST   /api/users                  admin              createUserBody          201 user
+ * PATCH  /api/users/:userId          admin              updateUserBody          200 user
+ * GET    /api/projects               signed in          projectListQuery        200 projectList
+ * POST   /api/projects               signed in          createProjectBody       201 project (caller is lead)
+ * GET    /api/projects/:projectId    member or admin    -                       200 project
+ * PATCH  /api/projects/:projectId    lead or admin      updateProjectBody       200 project
+ * POST   /api/projects/:projectId/archive   lead/admin  archiveBody             200 project
+ * GET    /api/projects/:projectId/members   member/admin -                      200 memberList
+ * PUT    /api/projects/:projectId/members/:userId  lead/admin  putMemberBody    200 member
+ * DELETE /api/projects/:projectId/members/:userId  lead/admin  -                204 (not the last lead: 409)
+ * GET    /api/projects/:projectId/sifs      member/admin sifListQuery           200 sifPage
+ * POST   /api/projects/:projectId/sifs      lead/engineer createSifBody         201 sif
+ * GET    /api/projects/:projectId/sifs/:sifId  member/admin -                   200 sif
+ * PATCH  /api/projects/:projectId/sifs/:sifId  lead/engineer/reviewer updateSifBody  200 sif
+ *        (stale version: 409 version_conflict, details = sifConflictDetails { current })
+ * POST   /api/projects/:projectId/sifs/:sifId/archive  lead/engineer archiveBody  200 sif
+ */
+export * from './errors.js';
+export * from './common.js';
+export * from './users.js';
+export * from './auth.js';
+export * from './projects.js';
+export * from './sif-target.js';
+export * from './sifs.js';
