@@ -16,6 +16,9 @@
  *   engineer (create, edit, archive SIFs; status draft / in-review / superseded), reviewer (read; status
  *   in-review -> approved or in-review -> draft, nothing else), viewer (read).
  * - A user who is neither a member nor an admin gets 404 for the project and everything in it.
+ * - permissions.ts holds the table (canDo, canChangeStatus). Approved and superseded SIFs are frozen:
+ *   changing their content needs status draft in the same PATCH (409 conflict otherwise). Archived SIFs
+ *   and SIFs of archived projects refuse changes (409 conflict) until restored with archived=false.
  *
  * Routes                                                body / query            response
  * POST   /api/auth/sign-in                              signInBody              200 user (new session)
@@ -47,3 +50,4 @@ export * from './auth.js';
 export * from './projects.js';
 export * from './sif-target.js';
 export * from './sifs.js';
+export * from './permissions.js';
