@@ -1,0 +1,4 @@
+export * from './users.js';
+export * from './projects.js';
+export * from './sifs.js';
+export * from './sessions.js';
