@@ -1,0 +1,1 @@
+export { createRandomStream, type RandomStream } from './xoshiro128.js';
