@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { multiLine, recordId, timestamp } from './common.js';
 import { validationIssue } from './errors.js';
+import type { ProjectRole } from './projects.js';
 
 /**
  * Models of a SIF. Each model has one working draft (autosaved, optimistic version) and immutable issued
@@ -13,9 +14,6 @@ import { validationIssue } from './errors.js';
 export const MODEL_KINDS = ['fault-tree', 'markov'] as const;
 export const modelKind = z.enum(MODEL_KINDS, { message: 'must be fault-tree or markov' });
 export type ModelKind = z.infer<typeof modelKind>;
-
-/** The largest draft or model file accepted, as JSON text. */
-export const MODEL_CONTENT_MAX_BYTES = 2_000_000;
 
 /** A draft's content: any JSON object (the model file being edited). */
 export const draftContent = z.record(z.string(), z.unknown(), { message: 'must be a JSON object (the model file)' });
@@ -117,3 +115,11 @@ export const exportModelQuery = z.object({
   revision: z.coerce.number({ message: 'must be a revision number' }).int('must be a whole number').min(1, 'must be 1 or more').optional(),
 });
 export type ExportModelQuery = z.input<typeof exportModelQuery>;
+
+/** Roles that create models, save drafts, import files and issue revisions (and start or cancel solves). */
+export const MODEL_EDIT_ROLES = ['lead', 'engineer'] as const;
+
+/** Whether a project role (null: not a member, e.g. a site admin) may change models and start solves. */
+export function canEditModels(role: ProjectRole | null): boolean {
+  return role !== null && (MODEL_EDIT_ROLES as readonly ProjectRole[]).includes(role);
+}

@@ -1,0 +1,51 @@
+import type { MessagePort } from 'node:worker_threads';
+import type { ModelFile } from '../../shared/model-file.js';
+import type { SolveResult } from '../../shared/solve-result.js';
+import type { SolveSettings } from '../../shared/api/solves.js';
+import { solveModel } from '../../solver/index.js';
+import { runTestFault, testFaultOf } from './test-faults.js';
+
+/** What the solve pool hands to a worker thread. */
+export interface SolveTask {
+  readonly model: ModelFile;
+  readonly settings: SolveSettings;
+  readonly allowTestFaults: boolean;
+  /** Receives `{ fraction, stage }` progress messages; closed when the task ends. */
+  readonly progressPort: MessagePort;
+}
+
+export interface ProgressMessage {
+  readonly fraction: number;
+  readonly stage: string;
+}
+
+/** At most one progress message per this many milliseconds, besides the first and the last. */
+const PROGRESS_INTERVAL_MS = 100;
+
+function progressReporter(port: MessagePort) {
+  let lastSent = 0;
+  let lastStage = '';
+  return (fraction: number, stage: string) => {
+    const now = Date.now();
+    if (now - lastSent < PROGRESS_INTERVAL_MS && stage === lastStage && fraction < 1) return;
+    lastSent = now;
+    lastStage = stage;
+    const message: ProgressMessage = { fraction: Math.min(1, Math.max(0, fraction)), stage };
+    port.postMessage(message);
+  };
+}
+
+/**
+ * Worker-thread entry of the solve pool (piscina): runs the solver on one model. The numerics run here,
+ * never on the thread that serves requests; an abort from the pool ends the whole thread.
+ */
+export default function solveTask(task: SolveTask): SolveResult {
+  const onProgress = progressReporter(task.progressPort);
+  try {
+    const fault = task.allowTestFaults ? testFaultOf(task.model) : undefined;
+    if (fault) runTestFault(fault, onProgress);
+    return solveModel(task.model, { ...task.settings, onProgress });
+  } finally {
+    task.progressPort.close();
+  }
+}
