@@ -1,0 +1,44 @@
+import { randomBytes, scrypt, timingSafeEqual, type ScryptOptions } from 'node:crypto';
+
+/**
+ * Password hashes with Node's scrypt. Stored as "scrypt$N$r$p$salt$hash" (base64) so the cost can rise
+ * later without breaking stored hashes. N = 2^15, r = 8, p = 1 are the OWASP Password Storage Cheat Sheet
+ * minimum for scrypt (from memory); 64-byte key, 16-byte salt.
+ */
+const COST = { N: 2 ** 15, r: 8, p: 1 } as const;
+const KEY_LENGTH = 64;
+const SALT_LENGTH = 16;
+
+function derive(password: string, salt: Buffer, options: ScryptOptions, keyLength: number): Promise<Buffer> {
+  return new Promise((resolve, reject) => {
+    scrypt(password.normalize('NFKC'), salt, keyLength, { ...options, maxmem: 256 * 1024 * 1024 }, (error, key) =>
+      error ? reject(error) : resolve(key),
+    );
+  });
+}
+
+export async function hashPassword(password: string): Promise<string> {
+  const salt = randomBytes(SALT_LENGTH);
+  const key = await derive(password, salt, COST, KEY_LENGTH);
+  return ['scrypt', COST.N, COST.r, COST.p, salt.toString('base64'), key.toString('base64')].join('$');
+}
+
+/** Checks a password against a stored hash in constant time; a malformed hash never matches. */
+export async function verifyPassword(password: string, stored: string): Promise<boolean> {
+  const parts = stored.split('$');
+  if (parts.length !== 6 || parts[0] !== 'scrypt') return false;
+  const [N, r, p] = parts.slice(1, 4).map(Number);
+  const salt = Buffer.from(parts[4], 'base64');
+  const expected = Buffer.from(parts[5], 'base64');
+  if (![N, r, p].every(Number.isSafeInteger) || expected.length === 0) return false;
+  const actual = await derive(password, salt, { N, r, p }, expected.length);
+  return timingSafeEqual(actual, expected);
+}
+
+let cachedUnmatchableHash: Promise<string> | undefined;
+
+/** A hash no password matches, checked when the username is unknown so the timing does not tell. */
+export function unmatchableHash(): Promise<string> {
+  cachedUnmatchableHash ??= hashPassword(randomBytes(32).toString('base64'));
+  return cachedUnmatchableHash;
+}

@@ -1,0 +1,54 @@
+import type { Member, ProjectRole } from '../../shared/api/projects.js';
+import type { SessionUser } from '../auth/session-user.js';
+import type { Database } from '../db/client.js';
+import { apiErrors } from '../errors.js';
+import { loadProjectAccess, requireAction, requireActiveProject, type ProjectAccess } from '../projects/project-access.js';
+import { UsersRepository } from '../users/users-repository.js';
+import { MembersRepository } from './members-repository.js';
+
+/** Membership rules: leads (and site admins) manage members; a project always keeps a lead. */
+export class MembersService {
+  constructor(
+    private readonly db: Database,
+    private readonly user: SessionUser,
+  ) {}
+
+  private async access(projectId: string): Promise<{ access: ProjectAccess; members: MembersRepository }> {
+    const access = await loadProjectAccess(this.db, this.user, projectId);
+    return { access, members: new MembersRepository(this.db, access) };
+  }
+
+  async list(projectId: string): Promise<Member[]> {
+    const { members } = await this.access(projectId);
+    return members.list();
+  }
+
+  async put(projectId: string, userId: string, role: ProjectRole): Promise<Member> {
+    const { access, members } = await this.access(projectId);
+    requireAction(access, 'members.manage', 'manage members');
+    requireActiveProject(access);
+    const target = await new UsersRepository(this.db).findById(userId);
+    if (!target) throw apiErrors.notFound('no user with this id');
+    const existing = await members.find(userId);
+    if (!existing && target.disabled) throw apiErrors.conflict(`${target.username} is disabled and cannot join a project`);
+    if (existing?.role === 'lead' && role !== 'lead') await this.keepALead(members);
+    await members.upsert(userId, role);
+    return { userId: target.id, username: target.username, displayName: target.displayName, role };
+  }
+
+  async remove(projectId: string, userId: string): Promise<void> {
+    const { access, members } = await this.access(projectId);
+    requireAction(access, 'members.manage', 'manage members');
+    requireActiveProject(access);
+    const existing = await members.find(userId);
+    if (!existing) throw apiErrors.notFound('this user is not a member of the project');
+    if (existing.role === 'lead') await this.keepALead(members);
+    await members.remove(userId);
+  }
+
+  private async keepALead(members: MembersRepository): Promise<void> {
+    if ((await members.countLeads()) <= 1) {
+      throw apiErrors.conflict('a project needs at least one lead; make another member lead first');
+    }
+  }
+}
