@@ -13,6 +13,8 @@ import { consoleLogger } from './logger.js';
 import { membersRouter } from './members/members-router.js';
 import { projectsRouter } from './projects/projects-router.js';
 import { sifsRouter } from './sifs/sifs-router.js';
+import { modelsRouter } from './models/models-router.js';
+import { solvesRouter, type SolvingDeps } from './solves/solves-router.js';
 import { usersRouter } from './users/users-router.js';
 
 export interface AppDeps {
@@ -29,6 +31,8 @@ export interface AppDeps {
   readonly secureCookie?: boolean;
   /** Default: 10 failed sign-ins per address and username per 15 minutes. */
   readonly signInLimit?: SignInLimit;
+  /** Queue and notices of the solve service (server/solves/solving.ts); absent: no solve routes. */
+  readonly solving?: SolvingDeps;
 }
 
 const CONTENT_SECURITY_POLICY = {
@@ -79,6 +83,8 @@ export function createApp(deps: AppDeps): Express {
   api.use(projectsRouter(context));
   api.use(membersRouter(context));
   api.use(sifsRouter(context));
+  api.use(modelsRouter(context));
+  if (deps.solving) api.use(solvesRouter(context, deps.solving));
 
   api.use(unknownApiRoute);
   app.use('/api', api);

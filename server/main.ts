@@ -7,6 +7,8 @@ import { createDatabase, createPool } from './db/client.js';
 import { runMigrations } from './db/migrate.js';
 import { consoleLogger as logger } from './logger.js';
 import { DEMO_USERS, seedDemoWorkspace } from './seed/demo-workspace.js';
+import { SOLVER_VERSION } from '../solver/index.js';
+import { solvingConfigFromEnv, startSolving } from './solves/solving.js';
 
 // Wires config, database, migrations and the demo seed, then listens. Everything else is in createApp.
 async function main(): Promise<void> {
@@ -17,7 +19,17 @@ async function main(): Promise<void> {
   const seeded = await seedDemoWorkspace(db);
   const sessionSecret = config.sessionSecret ?? (await storedSessionSecret(db));
   const sessionStore = createSessionStore(pool, logger, 15 * 60);
-  const app = createApp({ db, pool, sessionSecret, sessionStore, clientDir: config.clientDir, secureCookie: config.secureCookie });
+  const solvingConfig = solvingConfigFromEnv();
+  const solving = await startSolving({
+    connectionString: config.databaseUrl,
+    db,
+    pool,
+    logger,
+    solverVersion: SOLVER_VERSION,
+    timeLimitMs: solvingConfig.timeLimitMs,
+    solverThreads: solvingConfig.inProcessSolver ? solvingConfig.threads : 0,
+  });
+  const app = createApp({ db, pool, sessionSecret, sessionStore, clientDir: config.clientDir, secureCookie: config.secureCookie, solving: solving.deps });
 
   const server = app.listen(config.port, config.host);
   await new Promise<void>((resolve, reject) => {
@@ -30,6 +42,11 @@ async function main(): Promise<void> {
   logger.info(seeded ? 'Seeded the demo workspace (Brackwater Point Gas Terminal).' : 'Using the existing workspace.');
   logger.info('Demo sign-ins (as seeded; a changed password is not shown here):');
   for (const user of DEMO_USERS) logger.info(`  ${user.username.padEnd(9)} ${user.password.padEnd(20)} ${user.isAdmin ? 'site admin' : user.role}`);
+  logger.info(
+    solving.solver
+      ? `Solver process ${solving.solver.name} runs here with ${solvingConfig.threads} worker thread(s); more machines can join with npm run worker.`
+      : 'PROOFLINE_SOLVER=off: no solver process here; solves wait for npm run worker on the same database.',
+  );
   logger.info('Press Ctrl+C to stop.');
 
   let stopping = false;
@@ -41,10 +58,13 @@ async function main(): Promise<void> {
     force.unref();
     server.close(() => {
       sessionStore.close();
-      pool.end().then(
-        () => process.exit(0),
-        () => process.exit(1),
-      );
+      solving
+        .stop(3_000)
+        .then(() => pool.end())
+        .then(
+          () => process.exit(0),
+          () => process.exit(1),
+        );
     });
     server.closeAllConnections();
   };

@@ -18,7 +18,8 @@ import type { ModelRow } from '../db/schema/models.js';
 import { sifs } from '../db/schema/sifs.js';
 import { apiErrors } from '../errors.js';
 import { modelContentHash } from '../solves/content-hash.js';
-import { projectAccess, requireModelEditor, type ProjectAccess } from './model-access.js';
+import { loadProjectAccess, type ProjectAccess } from '../projects/project-access.js';
+import { requireModelEditor } from './model-access.js';
 import { checkModelFile, requireModelFile } from './model-file-check.js';
 import { modelRepository, type ModelRepository } from './model-repository.js';
 
@@ -41,7 +42,7 @@ function draftName(content: DraftContent, previous: string): string {
 /** Rules of models, drafts and revisions (roles: shared/api/models.ts). */
 export function createModelService(db: Database) {
   async function open(user: SessionUser, projectId: string): Promise<{ access: ProjectAccess; repository: ModelRepository }> {
-    const access = await projectAccess(db, user, projectId);
+    const access = await loadProjectAccess(db, user, projectId);
     return { access, repository: modelRepository(db, projectId) };
   }
 

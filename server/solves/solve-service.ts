@@ -7,7 +7,8 @@ import type { SessionUser } from '../auth/session-user.js';
 import type { Database } from '../db/client.js';
 import { solveResults } from '../db/schema/solves.js';
 import { apiErrors } from '../errors.js';
-import { projectAccess, requireModelEditor } from '../models/model-access.js';
+import { requireModelEditor } from '../models/model-access.js';
+import { loadProjectAccess } from '../projects/project-access.js';
 import { requireModelFile } from '../models/model-file-check.js';
 import { modelRepository } from '../models/model-repository.js';
 import type { SolveQueue } from '../queue/solve-queue.js';
@@ -33,7 +34,7 @@ export function createSolveService(options: SolveServiceOptions) {
   const { db, queue, events } = options;
 
   async function open(user: SessionUser, projectId: string) {
-    const access = await projectAccess(db, user, projectId);
+    const access = await loadProjectAccess(db, user, projectId);
     return { access, solves: solveRepository(db, projectId), models: modelRepository(db, projectId) };
   }
 

@@ -4,15 +4,22 @@ import { recordId } from '../../shared/api/common.js';
 import { solveListQuery, startSolveBody, type Solve } from '../../shared/api/solves.js';
 import { requireUser } from '../auth/session-user.js';
 import { parseInput } from '../http/validate.js';
+import type { AppContext } from '../app-context.js';
+import type { SolveQueue } from '../queue/solve-queue.js';
 import type { SolveEvents } from './solve-events.js';
-import type { SolveService } from './solve-service.js';
+import { createSolveService } from './solve-service.js';
 
 const modelParams = z.object({ projectId: recordId, modelId: recordId });
 const solveParams = z.object({ projectId: recordId, solveId: recordId });
 
-export interface SolveRouterOptions {
-  readonly service: SolveService;
+/** What the API needs to hand solves to the solver processes (server/solves/solving.ts makes it). */
+export interface SolvingDeps {
+  readonly queue: Pick<SolveQueue, 'send' | 'cancel'>;
   readonly events: SolveEvents;
+  /** The solver version results are looked up with (solver/index.ts SOLVER_VERSION). */
+  readonly solverVersion: string;
+  /** The solver processes' time limit per solve. */
+  readonly timeLimitMs: number;
   /** The stream re-reads the solve this often, in case a notice was missed. Default 5 s. */
   readonly recheckMs?: number;
   /** A comment line keeps idle connections open through proxies. Default 15 s. */
@@ -28,37 +35,38 @@ function summaryOf(solve: Solve) {
   return summary;
 }
 
-/** Solves under /api/projects/:projectId (routes: shared/api/index.ts; events: shared/api/solves.ts). */
-export function solveRouter(options: SolveRouterOptions): Router {
-  const { service, events } = options;
+/** Solves of a project's models (routes: shared/api/index.ts; events: shared/api/solves.ts). */
+export function solvesRouter({ db }: AppContext, options: SolvingDeps): Router {
+  const { events } = options;
+  const service = createSolveService({ db, ...options });
   const recheckMs = options.recheckMs ?? 5000;
   const keepAliveMs = options.keepAliveMs ?? 15_000;
-  const router = Router({ mergeParams: true });
+  const router = Router();
 
-  router.post('/models/:modelId/solves', async (req, res) => {
+  router.post('/projects/:projectId/models/:modelId/solves', async (req, res) => {
     const { projectId, modelId } = parseInput(modelParams, req.params, 'params');
     const body = parseInput(startSolveBody, req.body, 'body');
     const { solve, cached } = await service.start(requireUser(req), projectId, modelId, body);
     res.status(cached ? 200 : 202).json(solve);
   });
 
-  router.get('/models/:modelId/solves', async (req, res) => {
+  router.get('/projects/:projectId/models/:modelId/solves', async (req, res) => {
     const { projectId, modelId } = parseInput(modelParams, req.params, 'params');
     const query = parseInput(solveListQuery, req.query, 'query');
     res.json(await service.list(requireUser(req), projectId, modelId, query));
   });
 
-  router.get('/solves/:solveId', async (req, res) => {
+  router.get('/projects/:projectId/solves/:solveId', async (req, res) => {
     const { projectId, solveId } = parseInput(solveParams, req.params, 'params');
     res.json(await service.get(requireUser(req), projectId, solveId));
   });
 
-  router.post('/solves/:solveId/cancel', async (req, res) => {
+  router.post('/projects/:projectId/solves/:solveId/cancel', async (req, res) => {
     const { projectId, solveId } = parseInput(solveParams, req.params, 'params');
     res.json(await service.cancel(requireUser(req), projectId, solveId));
   });
 
-  router.get('/solves/:solveId/events', async (req, res) => {
+  router.get('/projects/:projectId/solves/:solveId/events', async (req, res) => {
     const { projectId, solveId } = parseInput(solveParams, req.params, 'params');
     const first = await service.get(requireUser(req), projectId, solveId);
     res.writeHead(200, {
