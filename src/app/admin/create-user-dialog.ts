@@ -1,0 +1,99 @@
+import { ChangeDetectionStrategy, Component, ErrorHandler, inject, signal } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import { MatCheckbox } from '@angular/material/checkbox';
+import { MatDialogActions, MatDialogClose, MatDialogContent, MatDialogRef, MatDialogTitle } from '@angular/material/dialog';
+import { MatError, MatFormField, MatLabel } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import { createUserBody, type User } from '../../../shared/api/users.js';
+import { isApiError } from '../errors/api-error';
+import { fieldMessage, schemaValidator } from '../forms/schema-validator';
+import { showServerIssues } from '../forms/server-issues';
+import { UserAccounts } from './user-accounts';
+
+@Component({
+  selector: 'pl-create-user-dialog',
+  imports: [
+    ReactiveFormsModule,
+    MatDialogTitle,
+    MatDialogContent,
+    MatDialogActions,
+    MatDialogClose,
+    MatFormField,
+    MatLabel,
+    MatError,
+    MatInput,
+    MatCheckbox,
+    MatButton,
+  ],
+  template: `
+    <h2 mat-dialog-title>Create user</h2>
+    <form [formGroup]="form" (ngSubmit)="submit()" novalidate>
+      <mat-dialog-content class="fields">
+        <mat-form-field>
+          <mat-label>Username</mat-label>
+          <input matInput formControlName="username" autocomplete="off" />
+          <mat-error>Username {{ fieldMessage(form.controls.username) }}</mat-error>
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Display name</mat-label>
+          <input matInput formControlName="displayName" />
+          <mat-error>Display name {{ fieldMessage(form.controls.displayName) }}</mat-error>
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>First password</mat-label>
+          <input matInput type="password" formControlName="password" autocomplete="new-password" />
+          <mat-error>Password {{ fieldMessage(form.controls.password) }}</mat-error>
+        </mat-form-field>
+        <mat-checkbox formControlName="isAdmin">Site administrator (manages user accounts)</mat-checkbox>
+      </mat-dialog-content>
+      <mat-dialog-actions align="end">
+        <button matButton type="button" mat-dialog-close>Cancel</button>
+        <button matButton="filled" type="submit" [disabled]="busy()">Create</button>
+      </mat-dialog-actions>
+    </form>
+  `,
+  styles: `
+    .fields {
+      display: flex;
+      flex-direction: column;
+      gap: 8px;
+    }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class CreateUserDialog {
+  private readonly accounts = inject(UserAccounts);
+  private readonly dialogRef = inject<MatDialogRef<CreateUserDialog, User>>(MatDialogRef);
+  private readonly errorHandler = inject(ErrorHandler);
+  private readonly formBuilder = inject(NonNullableFormBuilder);
+
+  protected readonly form = this.formBuilder.group({
+    username: ['', schemaValidator(createUserBody.shape.username)],
+    displayName: ['', schemaValidator(createUserBody.shape.displayName)],
+    password: ['', schemaValidator(createUserBody.shape.password)],
+    isAdmin: [false],
+  });
+  protected readonly busy = signal(false);
+  protected readonly fieldMessage = fieldMessage;
+
+  protected async submit(): Promise<void> {
+    if (this.form.invalid) {
+      this.form.markAllAsDirty();
+      return;
+    }
+    this.busy.set(true);
+    try {
+      this.dialogRef.close(await this.accounts.create(this.form.getRawValue()));
+    } catch (error) {
+      if (isApiError(error, 409) && error.code === 'already_exists') {
+        this.form.controls.username.setErrors({ server: 'is taken by another account' });
+        return;
+      }
+      const placed = isApiError(error, 400) && showServerIssues(error, (path) => this.form.get(path));
+      if (!placed) this.errorHandler.handleError(error);
+    } finally {
+      this.busy.set(false);
+    }
+  }
+}
