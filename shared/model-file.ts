@@ -145,12 +145,29 @@ export const markovTest = z.strictObject({
 });
 export type MarkovTest = z.infer<typeof markovTest>;
 
+/**
+ * An independent part of a state model: its own states, transitions and tests, sharing nothing with the
+ * main chain or the other parts. The function is down when the main chain or any part is down (a series),
+ * so the solver can solve each part on its own and combine them exactly instead of one product chain.
+ * State ids are local to their part.
+ */
+export const markovPart = z.strictObject({
+  id: modelItemId,
+  label: z.string().max(200).optional(),
+  states: z.array(markovState).min(1),
+  transitions: z.array(markovTransition),
+  tests: z.array(markovTest).optional(),
+});
+export type MarkovPart = z.infer<typeof markovPart>;
+
 export const markovModelShape = z.strictObject({
   ...header,
   kind: z.literal('markov'),
   states: z.array(markovState).min(1),
   transitions: z.array(markovTransition),
   tests: z.array(markovTest).optional(),
+  /** Further independent parts in series with the main chain (see markovPart). */
+  parts: z.array(markovPart).optional(),
 });
 
 type Issue = { path: (string | number)[]; message: string };
@@ -169,9 +186,17 @@ function duplicateIds(ids: { id: string }[], listName: string): Issue[] {
   return issues;
 }
 
+/** Most events plus gates a fault tree may have (larger models are refused with an error). */
+export const MAX_FAULT_TREE_ITEMS = 20_000;
+
 /** Reference checks of a fault tree: unknown ids, k out of range, cycles, CCF members, tests vs mission. */
 export function faultTreeIssues(model: z.infer<typeof faultTreeModelShape>): Issue[] {
   const issues: Issue[] = [...duplicateIds(model.events, 'events'), ...duplicateIds(model.gates, 'gates')];
+  const itemCount = model.events.length + model.gates.length;
+  if (itemCount > MAX_FAULT_TREE_ITEMS) {
+    issues.push({ path: [], message: `the model has ${itemCount} events and gates; at most ${MAX_FAULT_TREE_ITEMS} are allowed` });
+    return issues;
+  }
   const eventIds = new Set(model.events.map((event) => event.id));
   const gateIds = new Set(model.gates.map((item) => item.id));
   model.gates.forEach((item, index) => {
@@ -212,6 +237,9 @@ export function faultTreeIssues(model: z.infer<typeof faultTreeModelShape>): Iss
       }
     }
     const test = event.proofTest;
+    if (test && event.partialTest && event.partialTest.coverage > (test.coverage ?? 1)) {
+      issues.push({ path: ['events', index, 'partialTest', 'coverage'], message: `event "${event.id}": partial test coverage ${event.partialTest.coverage} is above the proof test coverage ${test.coverage ?? 1} (the proof test reveals everything the partial test reveals)` });
+    }
     if (test && test.durationHours !== undefined && test.durationHours >= test.intervalHours) {
       issues.push({ path: ['events', index, 'proofTest', 'durationHours'], message: `event "${event.id}": the proof test lasts as long as its interval or longer` });
     }
@@ -272,6 +300,19 @@ function findGateCycle(gates: Gate[]): string[] | undefined {
 
 /** Reference checks of a state model: unknown states, self transitions, initial distribution, test rows. */
 export function markovIssues(model: z.infer<typeof markovModelShape>): Issue[] {
+  const issues = stateChainIssues(model, model.mission.hours);
+  (model.parts ?? []).forEach((part, partIndex) => {
+    for (const issue of stateChainIssues(part, model.mission.hours)) {
+      issues.push({ path: ['parts', partIndex, ...issue.path], message: `part "${part.id}": ${issue.message}` });
+    }
+  });
+  issues.push(...duplicateIds(model.parts ?? [], 'parts'));
+  return issues;
+}
+
+type StateChain = Pick<MarkovPart, 'states' | 'transitions' | 'tests'>;
+
+function stateChainIssues(model: StateChain, missionHours: number): Issue[] {
   const issues: Issue[] = [...duplicateIds(model.states, 'states')];
   const stateIds = new Set(model.states.map((state) => state.id));
   const initialSum = model.states.reduce((sum, state) => sum + (state.initial ?? 0), 0);
@@ -297,8 +338,11 @@ export function markovIssues(model: z.infer<typeof markovModelShape>): Issue[] {
     }
   });
   (model.tests ?? []).forEach((test, testIndex) => {
-    if (test.intervalHours > model.mission.hours) {
-      issues.push({ path: ['tests', testIndex, 'intervalHours'], message: `test ${testIndex}: interval ${test.intervalHours} h is longer than the mission (${model.mission.hours} h)` });
+    if (test.intervalHours > missionHours) {
+      issues.push({ path: ['tests', testIndex, 'intervalHours'], message: `test ${testIndex}: interval ${test.intervalHours} h is longer than the mission (${missionHours} h)` });
+    }
+    if (test.firstHours !== undefined && test.firstHours > missionHours) {
+      issues.push({ path: ['tests', testIndex, 'firstHours'], message: `test ${testIndex}: first test at ${test.firstHours} h is after the mission end (${missionHours} h)` });
     }
     const rows = new Map<string, number>();
     test.moves.forEach((move, moveIndex) => {

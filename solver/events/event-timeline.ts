@@ -1,0 +1,209 @@
+/**
+ * Exact unavailability q(t) and dangerous failure frequency w(t) of one basic event under its own test
+ * and repair policy.
+ *
+ * The event's failure modes are independent of each other (as in the textbook formulas, Rausand &
+ * Hoyland, System Reliability Theory, 2nd ed., section 8.3-8.4 and IEC 61508-6:2010 B.3):
+ * - dangerous detected (DD): revealed at once and repaired at rate mu = 1/MTTR, a two-state Markov chain
+ *   with q(t) = lambda/(lambda+mu) (1 - exp(-(lambda+mu) t));
+ * - each group of dangerous undetected (DU) failures revealed at a set of test times: a three-state chain
+ *   (working, failed hidden, under repair) whose hidden failures move to repair at each test, solved in
+ *   closed form between tests;
+ * - DU failures never revealed before the mission ends: q(t) = 1 - exp(-lambda t).
+ * The event is failed when any mode is failed: q = 1 - prod(1 - q_mode). During a test with the event
+ * taken out of service it is failed (q = 1).
+ */
+export interface RevealedModeSpec {
+  /** Rate of the DU failures this group covers, per hour. */
+  readonly lambda: number;
+  /** Test times (hours, increasing, > 0) at which these failures are found. */
+  readonly revealTimes: readonly number[];
+}
+
+export interface EventTimelineSpec {
+  /** A constant probability on demand; when set, every rate below is ignored. */
+  readonly probability?: number;
+  readonly lambdaDD: number;
+  /** Mean time to restoration (hours) of a revealed failure; 0 means restored at once. */
+  readonly mttrHours: number;
+  readonly revealed: readonly RevealedModeSpec[];
+  /** Rate of DU failures that stay hidden to the end of the mission. */
+  readonly lambdaNeverRevealed: number;
+  /** Intervals [start, end) during which the event is out of service for a test. */
+  readonly downWindows: readonly (readonly [number, number])[];
+}
+
+interface CompiledMode {
+  readonly lambda: number;
+  /** Phase starts: 0 then each reveal time. */
+  readonly starts: Float64Array;
+  /** 1 - P(working) at each phase start, after the test's jump. */
+  readonly notWorking: Float64Array;
+  /** P(under repair) at each phase start, after the test's jump. */
+  readonly repairing: Float64Array;
+}
+
+/** A compiled event, ready to be evaluated at many times. */
+export interface EventTimeline {
+  readonly constant: number | undefined;
+  readonly lambdaDD: number;
+  /** Repair rate; Infinity when MTTR is 0. */
+  readonly mu: number;
+  readonly modes: readonly CompiledMode[];
+  readonly lambdaNeverRevealed: number;
+  /** Rate of DU failures, the failures that count in the failure frequency w(t). */
+  readonly lambdaDU: number;
+  readonly windowStarts: Float64Array;
+  readonly windowEnds: Float64Array;
+  /** Times where q(t) jumps, increasing. */
+  readonly breakpoints: Float64Array;
+}
+
+/** Beyond exp(-40) a repair transient is below 5e-18 of its size and is dropped. */
+const NEGLIGIBLE_EXPONENT = 40;
+
+/**
+ * mu (e^{-lambda s} - e^{-mu s}) / (mu - lambda): the probability mass that was under repair at the
+ * phase start and is working again at s (the working state's share of the repair flow), per unit mass.
+ */
+function repairedShare(lambda: number, mu: number, s: number): number {
+  if (mu === Infinity) return Math.exp(-lambda * s);
+  const decayMu = mu * s > NEGLIGIBLE_EXPONENT ? 0 : Math.exp(-mu * s);
+  const decayLambda = Math.exp(-lambda * s);
+  if (Math.abs(mu - lambda) <= 1e-12 * mu) return mu * s * decayLambda;
+  return (mu * (decayLambda - decayMu)) / (mu - lambda);
+}
+
+/** Compiles an event spec; throws RangeError on rates or times that are not finite and non-negative. */
+export function compileEventTimeline(spec: EventTimelineSpec): EventTimeline {
+  const mu = spec.mttrHours > 0 ? 1 / spec.mttrHours : Infinity;
+  const modes: CompiledMode[] = [];
+  let lambdaDU = spec.lambdaNeverRevealed;
+  const breakpoints: number[] = [];
+  for (const mode of spec.revealed) {
+    if (!(mode.lambda >= 0) || !Number.isFinite(mode.lambda)) throw new RangeError(`rate ${mode.lambda} is not a finite non-negative number`);
+    lambdaDU += mode.lambda;
+    const times = [...new Set(mode.revealTimes)].sort((a, b) => a - b);
+    const starts = new Float64Array(times.length + 1);
+    starts.set(times, 1);
+    const notWorking = new Float64Array(starts.length);
+    const repairing = new Float64Array(starts.length);
+    for (let phase = 1; phase < starts.length; phase++) {
+      const span = starts[phase] - starts[phase - 1];
+      const working = 1 - notWorking[phase - 1];
+      const before = notWorking[phase - 1] + working * -Math.expm1(-mode.lambda * span) - repairing[phase - 1] * repairedShare(mode.lambda, mu, span);
+      // The test moves hidden failures into repair: the non-working mass is unchanged and is all under
+      // repair afterwards (or working again at once when MTTR is 0).
+      notWorking[phase] = mu === Infinity ? 0 : before;
+      repairing[phase] = notWorking[phase];
+      breakpoints.push(starts[phase]);
+    }
+    modes.push({ lambda: mode.lambda, starts, notWorking, repairing });
+  }
+  const windowStarts = new Float64Array(spec.downWindows.map((window) => window[0]));
+  const windowEnds = new Float64Array(spec.downWindows.map((window) => window[1]));
+  for (const [start, end] of spec.downWindows) breakpoints.push(start, end);
+  return {
+    constant: spec.probability,
+    lambdaDD: spec.lambdaDD,
+    mu,
+    modes,
+    lambdaNeverRevealed: spec.lambdaNeverRevealed,
+    lambdaDU,
+    windowStarts,
+    windowEnds,
+    breakpoints: new Float64Array([...new Set(breakpoints)].sort((a, b) => a - b)),
+  };
+}
+
+/** Index of the last entry of a sorted array that is <= t (or < t when fromLeft), at least 0. */
+function phaseIndex(starts: Float64Array, t: number, fromLeft: boolean): number {
+  let low = 0;
+  let high = starts.length - 1;
+  while (low < high) {
+    const middle = (low + high + 1) >> 1;
+    const start = starts[middle];
+    if (start < t || (!fromLeft && start === t)) low = middle;
+    else high = middle - 1;
+  }
+  return low;
+}
+
+/** Whether the phase after `phase` has begun at t (strictly before t for a left limit). */
+function begun(start: number, t: number, fromLeft: boolean): boolean {
+  return start < t || (!fromLeft && start === t);
+}
+
+/**
+ * Writes q(t) (and, when wanted, w(t), the frequency of DU failures = lambdaDU (1 - q(t)) outside test
+ * windows) of one event at each time into out arrays at the given offset.
+ * @param fromLeft when given, a 1 at index j asks for the left limit q(t-) at times[j].
+ */
+export function evaluateEventTimeline(
+  timeline: EventTimeline,
+  times: Float64Array,
+  qOut: Float64Array,
+  offset: number,
+  wOut?: Float64Array,
+  fromLeft?: Uint8Array,
+): void {
+  const count = times.length;
+  if (timeline.constant !== undefined) {
+    qOut.fill(timeline.constant, offset, offset + count);
+    if (wOut) wOut.fill(0, offset, offset + count);
+    return;
+  }
+  const sumRate = timeline.lambdaDD + timeline.mu;
+  const ddLevel = timeline.mu === Infinity ? 0 : timeline.lambdaDD / sumRate;
+  const modes = timeline.modes;
+  // Times usually come sorted: each mode keeps its current phase and moves forward, with a binary search
+  // only when the times step back.
+  const phases = new Int32Array(modes.length);
+  const windowStarts = timeline.windowStarts;
+  const windowEnds = timeline.windowEnds;
+  let window = -1;
+  let previous = -Infinity;
+  for (let j = 0; j < count; j++) {
+    const t = times[j];
+    const left = fromLeft !== undefined && fromLeft[j] === 1;
+    if (t < previous) {
+      for (let m = 0; m < modes.length; m++) phases[m] = phaseIndex(modes[m].starts, t, left);
+      window = phaseIndex(windowStarts, t, left) - (windowStarts.length > 0 && begun(windowStarts[0], t, left) ? 0 : 1);
+    }
+    previous = t;
+    if (windowStarts.length > 0) {
+      while (window + 1 < windowStarts.length && begun(windowStarts[window + 1], t, left)) window++;
+      while (window >= 0 && !begun(windowStarts[window], t, left)) window--;
+      if (window >= 0 && (left ? t <= windowEnds[window] : t < windowEnds[window])) {
+        qOut[offset + j] = 1;
+        if (wOut) wOut[offset + j] = 0;
+        continue;
+      }
+    }
+    let q = 0;
+    if (ddLevel > 0) {
+      const exponent = sumRate * t;
+      q = exponent > NEGLIGIBLE_EXPONENT ? ddLevel : ddLevel * -Math.expm1(-exponent);
+    }
+    for (let m = 0; m < modes.length; m++) {
+      const mode = modes[m];
+      const starts = mode.starts;
+      let phase = phases[m];
+      while (phase + 1 < starts.length && begun(starts[phase + 1], t, left)) phase++;
+      while (phase > 0 && !begun(starts[phase], t, left)) phase--;
+      phases[m] = phase;
+      const s = t - starts[phase];
+      const notWorking = mode.notWorking[phase];
+      let qm = notWorking + (1 - notWorking) * -Math.expm1(-mode.lambda * s);
+      const repairing = mode.repairing[phase];
+      if (repairing > 0) qm -= repairing * repairedShare(mode.lambda, timeline.mu, s);
+      q += qm - q * qm;
+    }
+    if (timeline.lambdaNeverRevealed > 0) {
+      const qn = -Math.expm1(-timeline.lambdaNeverRevealed * t);
+      q += qn - q * qn;
+    }
+    qOut[offset + j] = q;
+    if (wOut) wOut[offset + j] = timeline.lambdaDU * (1 - q);
+  }
+}

@@ -1,0 +1,195 @@
+import type { FaultTreeModel } from '../../shared/model-file.js';
+import { throwIfAborted } from '../common/abort.js';
+import { integrateAdaptive, type PartitionRule } from '../common/quadrature.js';
+import { curveTimes } from '../common/time-grid.js';
+import { buildTree, type BuiltTree } from './build.js';
+import { minimalCutSets } from './cut-sets.js';
+import { backwardPass, flatten, forwardPass, variableMatrix, type FlatDiagram } from './evaluate.js';
+import { compileVariables, type TreeVariables } from './variables.js';
+
+/** Target of the summed Kronrod-Gauss error estimate, relative; the stated bound is 1e-6. */
+export const QUADRATURE_TOLERANCE = 1e-8;
+export const STATED_ERROR_BOUND = 1e-6;
+
+export interface EngineOptions {
+  readonly signal?: AbortSignal;
+  /** Node budget of the decision diagram. Default 2,000,000. */
+  readonly nodeLimit?: number;
+  /** Doubles of scratch per batch of time points (sets the batch length). Default 2^21. */
+  readonly scratchDoubles?: number;
+}
+
+export interface ItemAverages {
+  /** Time integral of Birnbaum importance, per model variable. */
+  readonly birnbaum: Float64Array;
+  /** Time integral of q_v times Birnbaum importance, per model variable. */
+  readonly qTimesBirnbaum: Float64Array;
+}
+
+/**
+ * The exact fault-tree engine of one model: the decision diagram built once, then evaluated at batches
+ * of time points. Each stage is a method so that the benchmark can time it.
+ */
+export class FaultTreeEngine {
+  readonly variables: TreeVariables;
+  readonly tree: BuiltTree;
+  readonly diagram: FlatDiagram;
+  readonly missionHours: number;
+  /** 0, every breakpoint of any event inside the mission, and the mission end. */
+  readonly edges: Float64Array;
+  private readonly signal: AbortSignal | undefined;
+  private readonly batch: number;
+
+  constructor(
+    readonly model: FaultTreeModel,
+    options: EngineOptions = {},
+  ) {
+    this.signal = options.signal;
+    this.missionHours = model.mission.hours;
+    this.variables = compileVariables(model);
+    throwIfAborted(this.signal);
+    this.tree = buildTree(model, this.variables, options.nodeLimit ?? 2_000_000);
+    this.diagram = flatten(this.tree.bdd, this.tree.root, this.tree.variableAt);
+    this.tree.bdd.clearCaches();
+    const points = new Set<number>([0, this.missionHours]);
+    for (const item of this.variables.variables) {
+      for (const time of item.timeline.breakpoints) if (time > 0 && time < this.missionHours) points.add(time);
+    }
+    this.edges = Float64Array.from([...points].sort((a, b) => a - b));
+    this.batch = Math.max(8, Math.min(4096, Math.floor((options.scratchDoubles ?? 2 ** 21) / this.diagram.size)));
+  }
+
+  /** P(top) at each time (the left limit where fromLeft[j] is 1), in batches. */
+  topProbability(times: Float64Array, fromLeft?: Uint8Array, diagram: FlatDiagram = this.diagram): Float64Array {
+    const out = new Float64Array(times.length);
+    const batch = Math.max(8, Math.min(4096, Math.floor((this.batch * this.diagram.size) / diagram.size)));
+    const values = new Float64Array(diagram.size * batch);
+    for (let start = 0; start < times.length; start += batch) {
+      throwIfAborted(this.signal);
+      const slice = times.subarray(start, Math.min(times.length, start + batch));
+      const { q } = variableMatrix(this.variables.variables, slice, false, fromLeft?.subarray(start, start + slice.length));
+      out.set(forwardPass(diagram, q, slice.length, values), start);
+    }
+    return out;
+  }
+
+  /** The curve: the uniform grid and every breakpoint, each breakpoint twice (left limit, then value). */
+  curve(timePoints: number): { hours: Float64Array; pfd: Float64Array } {
+    const { hours, fromLeft } = curveTimes(this.missionHours, timePoints, this.edges);
+    return { hours, pfd: this.topProbability(hours, fromLeft) };
+  }
+
+  /** PFDavg: (1/T) times the adaptive Gauss-Kronrod integral of PFD(t) between breakpoints. */
+  pfdAverage(onRound?: (intervals: number) => void): { pfdAvg: number; relativeError: number; partition: Float64Array } {
+    const result = integrateAdaptive(this.edges, (times) => this.topProbability(times), {
+      relativeTolerance: QUADRATURE_TOLERANCE,
+      signal: this.signal,
+      onRound,
+    });
+    const pfdAvg = result.integral / this.missionHours;
+    return { pfdAvg, relativeError: result.integral > 0 ? result.errorEstimate / result.integral : 0, partition: result.partition };
+  }
+
+  /**
+   * PFH and the time integrals of every variable's Birnbaum importance on a fixed partition: one forward
+   * and one backward pass per batch. The top's failure frequency is sum_v B_v(t) w_v(t), the failure
+   * frequency of a coherent structure of independent components (Rausand & Hoyland, System Reliability
+   * Theory, 2nd ed., chapter on system reliability, from memory).
+   * @param onCutSetBatch called per batch with the variables' q matrix, the batch length and weights.
+   */
+  frequencyAndImportance(
+    rule: PartitionRule,
+    onCutSetBatch?: (q: Float64Array, count: number, weights: Float64Array) => void,
+  ): { pfh: number; relativeError: number; averages: ItemAverages } {
+    const { times, weights } = rule;
+    const variableCount = this.variables.variables.length;
+    const birnbaumIntegral = new Float64Array(variableCount);
+    const qTimesBirnbaumIntegral = new Float64Array(variableCount);
+    const frequency = new Float64Array(times.length);
+    const size = this.diagram.size;
+    const batch = Math.max(8, Math.floor(this.batch / 2));
+    const values = new Float64Array(size * batch);
+    const reach = new Float64Array(size * batch);
+    for (let start = 0; start < times.length; start += batch) {
+      throwIfAborted(this.signal);
+      const count = Math.min(batch, times.length - start);
+      const slice = times.subarray(start, start + count);
+      const { q, w } = variableMatrix(this.variables.variables, slice, true);
+      const frequencyMatrix = w as Float64Array;
+      forwardPass(this.diagram, q, count, values);
+      const birnbaum = new Float64Array(variableCount * count);
+      backwardPass(this.diagram, q, count, values, reach, birnbaum);
+      for (let v = 0; v < variableCount; v++) {
+        const row = v * count;
+        let sumB = 0;
+        let sumQB = 0;
+        for (let j = 0; j < count; j++) {
+          const b = birnbaum[row + j];
+          if (b === 0) continue;
+          const weight = weights[start + j];
+          sumB += weight * b;
+          sumQB += weight * b * q[row + j];
+          frequency[start + j] += b * frequencyMatrix[row + j];
+        }
+        birnbaumIntegral[v] += sumB;
+        qTimesBirnbaumIntegral[v] += sumQB;
+      }
+      onCutSetBatch?.(q, count, weights.subarray(start, start + count));
+    }
+    const integral = rule.integrate(frequency);
+    return {
+      pfh: integral.integral / this.missionHours,
+      relativeError: integral.integral > 0 ? integral.errorEstimate / integral.integral : 0,
+      averages: { birnbaum: birnbaumIntegral, qTimesBirnbaum: qTimesBirnbaumIntegral },
+    };
+  }
+
+  /** PFH by its own adaptive integral, for when the PFDavg partition does not reach the tolerance. */
+  pfhAdaptive(): { pfh: number; relativeError: number } {
+    const size = this.diagram.size;
+    const result = integrateAdaptive(
+      this.edges,
+      (times) => {
+        const out = new Float64Array(times.length);
+        const batch = Math.max(8, Math.floor(this.batch / 2));
+        const values = new Float64Array(size * batch);
+        const reach = new Float64Array(size * batch);
+        for (let start = 0; start < times.length; start += batch) {
+          const count = Math.min(batch, times.length - start);
+          const { q, w } = variableMatrix(this.variables.variables, times.subarray(start, start + count), true);
+          forwardPass(this.diagram, q, count, values);
+          const birnbaum = new Float64Array(this.variables.variables.length * count);
+          backwardPass(this.diagram, q, count, values, reach, birnbaum);
+          for (let index = 0; index < birnbaum.length; index++) out[start + (index % count)] += birnbaum[index] * (w as Float64Array)[index];
+        }
+        return out;
+      },
+      { relativeTolerance: QUADRATURE_TOLERANCE, signal: this.signal },
+    );
+    return { pfh: result.integral / this.missionHours, relativeError: result.integral > 0 ? result.errorEstimate / result.integral : 0 };
+  }
+
+  /** Minimal cut sets of the top event as lists of variable indices (see cut-sets.ts). */
+  cutSets(maxOrder?: number) {
+    return minimalCutSets(this.diagram, { maxOrder });
+  }
+
+  /**
+   * The averages of P(top) with each gate fixed failed and fixed working, on a fixed partition (the
+   * events' q matrix at the partition's times is computed once and shared by every gate).
+   */
+  averagesWithGatesFixed(gateIds: readonly string[], rule: PartitionRule): { failed: number; working: number }[] {
+    const { q } = variableMatrix(this.variables.variables, rule.times, false);
+    const count = rule.times.length;
+    return gateIds.map((gateId) => {
+      throwIfAborted(this.signal);
+      const [failed, working] = [true, false].map((state) => {
+        const root = this.tree.topWithGateFixed(gateId, state);
+        const diagram = flatten(this.tree.bdd, root, this.tree.variableAt);
+        const values = new Float64Array(diagram.size * count);
+        return rule.integrate(forwardPass(diagram, q, count, values)).integral / this.missionHours;
+      });
+      return { failed, working };
+    });
+  }
+}

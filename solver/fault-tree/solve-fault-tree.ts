@@ -1,0 +1,154 @@
+import type { FaultTreeModel } from '../../shared/model-file.js';
+import { silReached } from '../../shared/sil.js';
+import type { SolveResult } from '../../shared/solve-result.js';
+import { throwIfAborted } from '../common/abort.js';
+import { kronrodOnPartition } from '../common/quadrature.js';
+import type { SolveOptions } from '../solve-options.js';
+import { simplifiedValues } from '../formulas/match.js';
+import { FaultTreeEngine, STATED_ERROR_BOUND } from './engine.js';
+
+/** Cut sets listed in a result, the most probable first. */
+export const MAX_LISTED_CUT_SETS = 1000;
+/** Gate importance is computed while gates x diagram nodes x quadrature times stays under this. */
+export const GATE_IMPORTANCE_BUDGET = 4e8;
+/** ...and while the events' q matrix at the quadrature times fits in this many doubles. */
+export const GATE_IMPORTANCE_MATRIX_LIMIT = 2 ** 23;
+
+export interface FaultTreeSolveOptions extends SolveOptions {
+  /** Node budget of the decision diagram (see FaultTreeEngine). */
+  readonly nodeLimit?: number;
+}
+
+/**
+ * Solves a fault tree exactly: per-event q(t) under each event's test plan, the top event from one
+ * decision diagram at every time point, PFDavg and PFH as adaptive integrals between breakpoints, minimal
+ * cut sets, importance measures and the simplified formulas beside the exact values.
+ */
+export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOptions, solverVersion: string): SolveResult {
+  const progress = options.onProgress ?? (() => undefined);
+  const signal = options.signal;
+  progress(0, 'building the decision diagram');
+  const engine = new FaultTreeEngine(model, { signal, nodeLimit: options.nodeLimit });
+  const warnings = [...engine.variables.warnings];
+  throwIfAborted(signal);
+
+  progress(0.15, 'computing PFD(t)');
+  const curve = engine.curve(options.timePoints ?? 1000);
+  let pfdMax = 0;
+  for (const value of curve.pfd) pfdMax = Math.max(pfdMax, value);
+
+  progress(0.35, 'integrating PFDavg');
+  const average = engine.pfdAverage();
+  if (average.relativeError > STATED_ERROR_BOUND) {
+    warnings.push(`the PFDavg integral reached a relative error estimate of ${average.relativeError.toExponential(1)} only`);
+  }
+
+  progress(0.55, 'computing PFH, importance and cut sets');
+  const rule = kronrodOnPartition(average.partition);
+  const cutSets = engine.cutSets();
+  if (cutSets.truncated) warnings.push(`minimal cut sets above order ${Math.max(0, ...cutSets.sets.map((set) => set.length))} are not listed`);
+  const cutSetIntegrals = new Float64Array(cutSets.sets.length);
+  const frequency = engine.frequencyAndImportance(rule, (q, count, weights) => {
+    cutSets.sets.forEach((set, index) => {
+      let sum = 0;
+      for (let j = 0; j < count; j++) {
+        let product = weights[j];
+        for (const variable of set) product *= q[variable * count + j];
+        sum += product;
+      }
+      cutSetIntegrals[index] += sum;
+    });
+  });
+  let pfh = frequency.pfh;
+  let pfhError = frequency.relativeError;
+  if (pfhError > STATED_ERROR_BOUND) {
+    const adaptive = engine.pfhAdaptive();
+    pfh = adaptive.pfh;
+    pfhError = adaptive.relativeError;
+    if (pfhError > STATED_ERROR_BOUND) warnings.push(`the PFH integral reached a relative error estimate of ${pfhError.toExponential(1)} only`);
+  }
+
+  const mission = model.mission.hours;
+  const pfdAvg = average.pfdAvg;
+  const variables = engine.variables.variables;
+  const basicImportance = variables.map((item, index) => {
+    const birnbaum = frequency.averages.birnbaum[index] / mission;
+    const reduction = frequency.averages.qTimesBirnbaum[index] / mission;
+    const withFailed = pfdAvg + birnbaum - reduction;
+    const withWorking = pfdAvg - reduction;
+    return {
+      id: item.id,
+      kind: item.kind,
+      birnbaum,
+      fussellVesely: pfdAvg > 0 ? reduction / pfdAvg : 0,
+      riskAchievementWorth: pfdAvg > 0 ? withFailed / pfdAvg : 0,
+      riskReductionWorth: withWorking > 0 ? pfdAvg / withWorking : Number.MAX_VALUE,
+      share: 0,
+    };
+  });
+  const totalReduction = basicImportance.reduce((sum, item) => sum + item.fussellVesely, 0);
+  for (const item of basicImportance) item.share = totalReduction > 0 ? item.fussellVesely / totalReduction : 0;
+
+  progress(0.8, 'gate importance');
+  const gateImportance: SolveResult['importance'] = [];
+  const gateWork = model.gates.length * engine.diagram.size * rule.times.length * 2;
+  const matrixSize = variables.length * rule.times.length;
+  if (gateWork <= GATE_IMPORTANCE_BUDGET && matrixSize <= GATE_IMPORTANCE_MATRIX_LIMIT) {
+    const fixed = engine.averagesWithGatesFixed(
+      model.gates.map((gate) => gate.id),
+      rule,
+    );
+    model.gates.forEach((gate, index) => {
+      const { failed: withFailed, working: withWorking } = fixed[index];
+      gateImportance.push({
+        id: gate.id,
+        kind: 'gate',
+        birnbaum: withFailed - withWorking,
+        fussellVesely: pfdAvg > 0 ? (pfdAvg - withWorking) / pfdAvg : 0,
+        riskAchievementWorth: pfdAvg > 0 ? withFailed / pfdAvg : 0,
+        riskReductionWorth: withWorking > 0 ? pfdAvg / withWorking : Number.MAX_VALUE,
+        share: pfdAvg > 0 ? (pfdAvg - withWorking) / pfdAvg : 0,
+      });
+    });
+  } else {
+    warnings.push(`gate importance skipped: ${model.gates.length} gates on a diagram of ${engine.diagram.size} nodes is beyond the budget`);
+  }
+
+  const cutSetTotal = cutSetIntegrals.reduce((sum, value) => sum + value, 0);
+  const listed = cutSets.sets
+    .map((set, index) => ({ set, integral: cutSetIntegrals[index] }))
+    .sort((a, b) => b.integral - a.integral);
+  if (listed.length > MAX_LISTED_CUT_SETS) warnings.push(`${listed.length} minimal cut sets found; the ${MAX_LISTED_CUT_SETS} most probable are listed`);
+
+  progress(0.9, 'simplified formulas');
+  const simplified = simplifiedValues(model, { pfdAvg, pfh });
+  const demand = model.mission.demand;
+  if (demand !== 'low') {
+    warnings.push('PFH counts DU failures (DD failures are taken to the safe state by diagnostics); time out of service for tests is not counted as a dangerous failure');
+  }
+  if (pfdAvg === 0) warnings.push('PFDavg is 0: the risk reduction factor is unbounded');
+  progress(1, 'done');
+  return {
+    method: 'fault-tree',
+    algorithm: `BDD, ${engine.diagram.size} nodes over ${variables.length} variables; adaptive Gauss-Kronrod (7/15) on ${average.partition.length - 1} intervals between ${engine.edges.length - 1} breakpoint segments`,
+    solverVersion,
+    demand,
+    missionHours: mission,
+    pfdAvg,
+    pfdMax,
+    pfh,
+    rrf: pfdAvg > 0 ? 1 / pfdAvg : Number.MAX_VALUE,
+    sil: silReached(demand === 'low' ? pfdAvg : pfh, demand),
+    curve: { hours: Array.from(curve.hours), pfd: Array.from(curve.pfd) },
+    simplified,
+    cutSets: listed.slice(0, MAX_LISTED_CUT_SETS).map(({ set, integral }) => ({
+      events: Array.from(set, (variable) => variables[variable].id),
+      order: set.length,
+      probability: integral / mission,
+      share: cutSetTotal > 0 ? integral / cutSetTotal : 0,
+    })),
+    importance: [...basicImportance, ...gateImportance],
+    warnings,
+    errorBound: average.relativeError,
+  };
+}

@@ -1,0 +1,47 @@
+import { modelFile, type ModelFile } from '../shared/model-file.js';
+import type { SolveResult } from '../shared/solve-result.js';
+import { ModelError, SolverUnavailableError } from './common/model-error.js';
+import { BddNodeLimitError } from './fault-tree/bdd.js';
+import { solveFaultTree } from './fault-tree/solve-fault-tree.js';
+import type { SolveOptions } from './solve-options.js';
+
+export { ModelError, SolverUnavailableError, type ModelIssue } from './common/model-error.js';
+export type { SolveOptions } from './solve-options.js';
+
+/** Version of the numerical engines, stored with every result. */
+export const SOLVER_VERSION = '1.0.0';
+
+/** Largest decision diagram the exact fault-tree engine builds. */
+export const DIAGRAM_NODE_LIMIT = 2_000_000;
+
+/**
+ * Solves a model file: the exact fault-tree engine (decision diagram), the Markov engine or the Monte
+ * Carlo engine, by the model's kind and options.method.
+ * @throws ModelError when the model fails the model file schema or is beyond an engine limit; each issue
+ *   names its path in the file.
+ * @throws the signal's reason when options.signal is aborted.
+ */
+export function solveModel(model: ModelFile, options: SolveOptions = {}): SolveResult {
+  const parsed = modelFile.safeParse(model);
+  if (!parsed.success) {
+    throw new ModelError(parsed.error.issues.map((issue) => ({ path: issue.path.map((part) => (typeof part === 'number' ? part : String(part))), message: issue.message })));
+  }
+  const checked = parsed.data;
+  if (options.timePoints !== undefined && (!Number.isInteger(options.timePoints) || options.timePoints < 2 || options.timePoints > 1_000_000)) {
+    throw new RangeError(`timePoints must be an integer from 2 to 1,000,000 (got ${options.timePoints})`);
+  }
+  if (options.method === 'montecarlo') {
+    throw new SolverUnavailableError('Monte Carlo simulation is not supported by this build');
+  }
+  if (checked.kind === 'markov') {
+    throw new SolverUnavailableError('Markov models are not supported by this build');
+  }
+  try {
+    return solveFaultTree(checked, { ...options, nodeLimit: DIAGRAM_NODE_LIMIT }, SOLVER_VERSION);
+  } catch (error) {
+    if (error instanceof BddNodeLimitError) {
+      throw new ModelError([{ path: ['gates'], message: `the fault tree is too large for the exact engine: its decision diagram needs more than ${error.limit.toLocaleString('en-US')} nodes` }]);
+    }
+    throw error;
+  }
+}
