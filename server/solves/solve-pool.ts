@@ -2,7 +2,7 @@ import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
 import type { ModelFile } from '../../shared/model-file.js';
 import type { SolveSettings } from '../../shared/api/solves.js';
-import type { ProgressMessage, SolveTask } from './solve-task.js';
+import type { SolveTask, TaskMessage } from './solve-task.js';
 
 export interface SolvePoolOptions {
   /** Worker threads, each running one solve at a time. */
@@ -15,6 +15,8 @@ export interface SolvePoolOptions {
 export interface SolveRunOptions {
   /** Aborting ends the solve at once: a running worker thread is terminated and replaced. */
   readonly signal: AbortSignal;
+  /** Called when a worker thread begins the solve (after any wait for a replaced thread to start). */
+  readonly onStarted: () => void;
   readonly onProgress: (fraction: number, stage: string) => void;
 }
 
@@ -51,7 +53,10 @@ export function createSolvePool(options: SolvePoolOptions): SolvePool {
     threads: options.threads,
     async run(model, settings, runOptions) {
       const { port1, port2 } = new MessageChannel();
-      port1.on('message', (message: ProgressMessage) => runOptions.onProgress(message.fraction, message.stage));
+      port1.on('message', (message: TaskMessage) => {
+        if (message.kind === 'started') runOptions.onStarted();
+        else runOptions.onProgress(message.fraction, message.stage);
+      });
       try {
         const task: SolveTask = { model, settings, allowTestFaults: options.allowTestFaults, progressPort: port2 };
         return await piscina.run(task, { signal: runOptions.signal, transferList: [port2] });

@@ -10,14 +10,11 @@ export interface SolveTask {
   readonly model: ModelFile;
   readonly settings: SolveSettings;
   readonly allowTestFaults: boolean;
-  /** Receives `{ fraction, stage }` progress messages; closed when the task ends. */
+  /** Receives a `started` message, then `progress` messages; closed when the task ends. */
   readonly progressPort: MessagePort;
 }
 
-export interface ProgressMessage {
-  readonly fraction: number;
-  readonly stage: string;
-}
+export type TaskMessage = { readonly kind: 'started' } | { readonly kind: 'progress'; readonly fraction: number; readonly stage: string };
 
 /** At most one progress message per this many milliseconds, besides the first and the last. */
 const PROGRESS_INTERVAL_MS = 100;
@@ -30,7 +27,7 @@ function progressReporter(port: MessagePort) {
     if (now - lastSent < PROGRESS_INTERVAL_MS && stage === lastStage && fraction < 1) return;
     lastSent = now;
     lastStage = stage;
-    const message: ProgressMessage = { fraction: Math.min(1, Math.max(0, fraction)), stage };
+    const message: TaskMessage = { kind: 'progress', fraction: Math.min(1, Math.max(0, fraction)), stage };
     port.postMessage(message);
   };
 }
@@ -40,10 +37,12 @@ function progressReporter(port: MessagePort) {
  * never on the thread that serves requests; an abort from the pool ends the whole thread.
  */
 export default function solveTask(task: SolveTask): SolveResult {
-  const onProgress = progressReporter(task.progressPort);
+  const started: TaskMessage = { kind: 'started' };
+  task.progressPort.postMessage(started);
+  const report = progressReporter(task.progressPort);
   try {
     const fault = task.allowTestFaults ? testFaultOf(task.model) : undefined;
-    if (fault) runTestFault(fault, onProgress);
+    const onProgress = fault ? runTestFault(fault, report) : report;
     return solveModel(task.model, { ...task.settings, onProgress });
   } finally {
     task.progressPort.close();

@@ -1,3 +1,4 @@
+import { randomBytes } from 'node:crypto';
 import { hostname } from 'node:os';
 import { and, eq, inArray, lt, sql } from 'drizzle-orm';
 import type pg from 'pg';
@@ -30,6 +31,7 @@ export interface SolverProcessOptions {
 }
 
 export interface SolverProcess {
+  /** host:pid:random, stored with each solve it runs. */
   readonly name: string;
   /** Stops taking jobs, lets running solves finish (up to `timeoutMs`), then closes threads and connections. */
   stop(timeoutMs?: number): Promise<void>;
@@ -68,7 +70,7 @@ export function failureReason(error: unknown, abortReason: unknown, timeLimitMs:
  */
 export async function startSolverProcess(options: SolverProcessOptions): Promise<SolverProcess> {
   const { db, log, timeLimitMs } = options;
-  const name = `${hostname()}:${process.pid}`;
+  const name = `${hostname()}:${process.pid}:${randomBytes(3).toString('hex')}`;
   const allowTestFaults = options.allowTestFaults ?? process.env['NODE_ENV'] === 'test';
   const heartbeatMs = options.heartbeatMs ?? 5000;
   const staleAfterMs = options.staleAfterMs ?? 30_000;
@@ -125,10 +127,14 @@ export async function startSolverProcess(options: SolverProcessOptions): Promise
         }
       };
 
-      const timer = setTimeout(() => controller.abort(TIME_LIMIT), timeLimitMs);
+      // The time limit counts from the moment a worker thread begins, not while a crashed one is replaced.
+      let timer: NodeJS.Timeout | undefined;
+      const onStarted = () => {
+        timer ??= setTimeout(() => controller.abort(TIME_LIMIT), timeLimitMs);
+      };
       let output: unknown;
       try {
-        output = await pool.run(claimed.model as ModelFile, claimed.settings, { signal: controller.signal, onProgress });
+        output = await pool.run(claimed.model as ModelFile, claimed.settings, { signal: controller.signal, onStarted, onProgress });
       } catch (error) {
         if (controller.signal.reason === CANCELLED) {
           await finish(solveId, { status: 'cancelled', stage: 'cancelled on request' });

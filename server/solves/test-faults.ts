@@ -8,7 +8,8 @@ import type { ModelFile } from '../../shared/model-file.js';
  * - throw: the worker throws an error.
  * - exit: the worker thread exits with code 3, as a crash would.
  * - hang: the worker spins without ever returning or reporting (only the time limit stops it).
- * - slow:<ms>: the worker reports progress in 10 steps over <ms> milliseconds, then solves the model.
+ * - slow:<ms>: the worker reports progress from 0 to 0.5 in 10 steps over <ms> milliseconds, then solves
+ *   the model, its progress mapped onto 0.5 to 1.
  */
 export type TestFault = { readonly kind: 'throw' } | { readonly kind: 'exit' } | { readonly kind: 'hang' } | { readonly kind: 'slow'; readonly ms: number };
 
@@ -30,23 +31,27 @@ function sleepSync(ms: number): void {
   Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
 }
 
-/** Runs the fault in the calling worker thread; returns only for "slow", after its progress steps. */
-export function runTestFault(fault: TestFault, onProgress: (fraction: number, stage: string) => void): void {
+type ProgressCallback = (fraction: number, stage: string) => void;
+
+/**
+ * Runs the fault in the calling worker thread; returns only for "slow", after its progress steps, with the
+ * progress callback the solver should use next.
+ */
+export function runTestFault(fault: TestFault, onProgress: ProgressCallback): ProgressCallback {
   switch (fault.kind) {
     case 'throw':
       throw new Error('test fault: the solver threw on purpose');
     case 'exit':
-      process.exit(TEST_FAULT_EXIT_CODE);
-      break;
+      return process.exit(TEST_FAULT_EXIT_CODE);
     case 'hang':
       for (;;) {
         sleepSync(50);
       }
     case 'slow':
       for (let step = 0; step < 10; step++) {
-        onProgress(step / 10, `test fault: slow step ${step + 1} of 10`);
+        onProgress(step / 20, `test fault: slow step ${step + 1} of 10`);
         sleepSync(fault.ms / 10);
       }
-      break;
+      return (fraction, stage) => onProgress(0.5 + fraction / 2, stage);
   }
 }
