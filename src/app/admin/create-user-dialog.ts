@@ -33,17 +33,17 @@ import { UserAccounts } from './user-accounts';
         <mat-form-field>
           <mat-label>Username</mat-label>
           <input matInput formControlName="username" autocomplete="off" />
-          <mat-error>Username {{ fieldMessage(form.controls.username) }}</mat-error>
+          <mat-error>{{ fieldMessage('Username', form.controls.username) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Display name</mat-label>
           <input matInput formControlName="displayName" />
-          <mat-error>Display name {{ fieldMessage(form.controls.displayName) }}</mat-error>
+          <mat-error>{{ fieldMessage('Display name', form.controls.displayName) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>First password</mat-label>
           <input matInput type="password" formControlName="password" autocomplete="new-password" />
-          <mat-error>Password {{ fieldMessage(form.controls.password) }}</mat-error>
+          <mat-error>{{ fieldMessage('Password', form.controls.password) }}</mat-error>
         </mat-form-field>
         <mat-checkbox formControlName="isAdmin">Site administrator (manages user accounts)</mat-checkbox>
       </mat-dialog-content>

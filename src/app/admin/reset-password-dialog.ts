@@ -40,7 +40,7 @@ import { UserAccounts } from './user-accounts';
         <mat-form-field class="field">
           <mat-label>New password</mat-label>
           <input matInput type="password" formControlName="password" autocomplete="new-password" />
-          <mat-error>Password {{ fieldMessage(form.controls.password) }}</mat-error>
+          <mat-error>{{ fieldMessage('Password', form.controls.password) }}</mat-error>
         </mat-form-field>
       </mat-dialog-content>
       <mat-dialog-actions align="end">

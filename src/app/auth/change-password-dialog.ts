@@ -34,17 +34,17 @@ import { SessionStore } from './session-store';
         <mat-form-field>
           <mat-label>Current password</mat-label>
           <input matInput type="password" formControlName="currentPassword" autocomplete="current-password" />
-          <mat-error>Current password {{ fieldMessage(form.controls.currentPassword) }}</mat-error>
+          <mat-error>{{ fieldMessage('Current password', form.controls.currentPassword) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>New password</mat-label>
           <input matInput type="password" formControlName="newPassword" autocomplete="new-password" />
-          <mat-error>New password {{ fieldMessage(form.controls.newPassword) }}</mat-error>
+          <mat-error>{{ fieldMessage('New password', form.controls.newPassword) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>New password again</mat-label>
           <input matInput type="password" formControlName="repeated" autocomplete="new-password" />
-          <mat-error>New password again {{ fieldMessage(form.controls.repeated) }}</mat-error>
+          <mat-error>{{ fieldMessage('New password again', form.controls.repeated) }}</mat-error>
         </mat-form-field>
       </mat-dialog-content>
       <mat-dialog-actions align="end">

@@ -12,10 +12,16 @@ export function schemaValidator(schema: z.ZodType): ValidatorFn {
   };
 }
 
-/** The message to show under a field: the schema's, or the server's from a refused save. */
-export function fieldMessage(control: AbstractControl): string {
+/**
+ * The sentence to show under a field: the schema's message, or the server's from a refused save. Messages
+ * that complete a sentence ("must not be empty") get the field's name in front; messages that are
+ * sentences of their own ("a PFH target does not apply in low demand mode") are shown as they are.
+ */
+export function fieldMessage(subject: string, control: AbstractControl): string {
   const errors = control.errors;
   if (!errors) return '';
-  const message = errors['schema'] ?? errors['server'] ?? errors['mismatch'];
-  return typeof message === 'string' ? message : 'is not valid';
+  const found = errors['schema'] ?? errors['server'] ?? errors['mismatch'];
+  const message = typeof found === 'string' ? found : 'is not valid';
+  if (/^(must|is|are|has)\b/.test(message)) return `${subject} ${message}`;
+  return message.charAt(0).toUpperCase() + message.slice(1);
 }

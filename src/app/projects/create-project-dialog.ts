@@ -31,27 +31,27 @@ import { ProjectCatalog } from './project-catalog';
         <mat-form-field>
           <mat-label>Name</mat-label>
           <input matInput formControlName="name" cdkFocusInitial />
-          <mat-error>Name {{ fieldMessage(form.controls.name) }}</mat-error>
+          <mat-error>{{ fieldMessage('Name', form.controls.name) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Site</mat-label>
           <input matInput formControlName="site" />
-          <mat-error>Site {{ fieldMessage(form.controls.site) }}</mat-error>
+          <mat-error>{{ fieldMessage('Site', form.controls.site) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Unit</mat-label>
           <input matInput formControlName="unit" />
-          <mat-error>Unit {{ fieldMessage(form.controls.unit) }}</mat-error>
+          <mat-error>{{ fieldMessage('Unit', form.controls.unit) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Client</mat-label>
           <input matInput formControlName="client" />
-          <mat-error>Client {{ fieldMessage(form.controls.client) }}</mat-error>
+          <mat-error>{{ fieldMessage('Client', form.controls.client) }}</mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Description</mat-label>
           <textarea matInput formControlName="description" rows="3"></textarea>
-          <mat-error>Description {{ fieldMessage(form.controls.description) }}</mat-error>
+          <mat-error>{{ fieldMessage('Description', form.controls.description) }}</mat-error>
         </mat-form-field>
       </mat-dialog-content>
       <mat-dialog-actions align="end">

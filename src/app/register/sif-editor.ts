@@ -95,7 +95,7 @@ export class SifEditor {
   protected readonly formatMeasure = formatMeasure;
   protected readonly formatRiskReduction = formatRiskReduction;
 
-  private readonly value = toSignal(this.form.valueChanges.pipe(map(() => this.form.getRawValue())), {
+  protected readonly value = toSignal(this.form.valueChanges.pipe(map(() => this.form.getRawValue())), {
     initialValue: this.form.getRawValue(),
   });
 
@@ -116,10 +116,15 @@ export class SifEditor {
     return SIF_STATUSES.filter((to) => canChangeStatus(this.role(), this.session.isAdmin(), base.status, to));
   });
   protected readonly canSave = computed(() => this.canEdit() || this.statusOptions().length > 1);
-  /** Target kinds that apply to the chosen demand mode. */
-  protected readonly targetKinds = computed<readonly SifTargetKind[]>(() =>
-    this.value().demandMode === 'low' ? ['sil', 'rrf', 'pfdAvg'] : ['sil', 'pfh'],
-  );
+  /**
+   * Target kinds that apply to the chosen demand mode, plus the kind already chosen so that it stays
+   * visible (with its error) after the demand mode changed under it.
+   */
+  protected readonly targetKinds = computed<readonly SifTargetKind[]>(() => {
+    const { demandMode, targetKind } = this.value();
+    const applicable: readonly SifTargetKind[] = demandMode === 'low' ? ['sil', 'rrf', 'pfdAvg'] : ['sil', 'pfh'];
+    return applicable.includes(targetKind) ? applicable : [...applicable, targetKind];
+  });
   /** The target in its other forms, derived with the shared function; null while the target is invalid. */
   protected readonly derived = computed(() => {
     const check = checkFormTarget(this.value());

@@ -23,10 +23,10 @@ export const TARGET_KIND_LABELS: Record<SifTargetKind, string> = {
 
 /**
  * A probability or frequency in the engineer's usual notation: three significant digits, in exponent
- * form below 0.01 ("2.50e-3").
+ * form below 0.1 ("2.50e-3").
  */
 export function formatMeasure(value: number): string {
-  if (value !== 0 && Math.abs(value) < 0.01) return value.toExponential(2);
+  if (value !== 0 && Math.abs(value) < 0.1) return value.toExponential(2);
   return String(Number(value.toPrecision(3)));
 }
 
