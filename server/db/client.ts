@@ -10,6 +10,9 @@ export interface Logger {
   error(message: string, error?: unknown): void;
 }
 
+/** How the server's connections show in pg_stat_activity. */
+export const POOL_APPLICATION_NAME = 'proofline-server';
+
 /**
  * A pool that outlives a PostgreSQL restart: a broken idle connection is reported and dropped (without
  * the error handler node-postgres would crash the process), and the next query opens a new one.
@@ -17,6 +20,7 @@ export interface Logger {
 export function createPool(connectionString: string, logger: Logger): pg.Pool {
   const pool = new pg.Pool({
     connectionString,
+    application_name: POOL_APPLICATION_NAME,
     max: 10,
     idleTimeoutMillis: 30_000,
     connectionTimeoutMillis: 5_000,
