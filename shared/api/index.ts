@@ -42,6 +42,24 @@
  * PATCH  /api/projects/:projectId/sifs/:sifId  lead/engineer/reviewer updateSifBody  200 sif
  *        (stale version: 409 version_conflict, details = sifConflictDetails { current })
  * POST   /api/projects/:projectId/sifs/:sifId/archive  lead/engineer archiveBody  200 sif
+ *
+ * Models and solves (models.ts, solves.ts). Members of every role and site admins read; leads and
+ * engineers change (reviewers and viewers 403); archived projects and SIFs refuse changes (409).
+ * GET    /api/projects/:projectId/sifs/:sifId/models      member/admin  -                 200 modelList
+ * POST   /api/projects/:projectId/sifs/:sifId/models      lead/engineer createModelBody   201 modelDetail
+ * GET    /api/projects/:projectId/models/:modelId          member/admin  -                 200 modelDetail
+ * PUT    /api/projects/:projectId/models/:modelId/draft    lead/engineer saveDraftBody     200 modelDraft
+ *        (stale version: 409 version_conflict, details = draftConflictDetails { current })
+ * POST   /api/projects/:projectId/models/:modelId/import   lead/engineer importModelBody   200 modelDraft (409 as above)
+ * GET    /api/projects/:projectId/models/:modelId/export   member/admin  exportModelQuery  200 model file (attachment)
+ * GET    /api/projects/:projectId/models/:modelId/revisions  member/admin -                200 modelRevisionList
+ * POST   /api/projects/:projectId/models/:modelId/revisions  lead/engineer issueRevisionBody 201 modelRevisionDetail (409 as above)
+ * GET    /api/projects/:projectId/models/:modelId/revisions/:number  member/admin -        200 modelRevisionDetail
+ * POST   /api/projects/:projectId/models/:modelId/solves   lead/engineer startSolveBody    202 solve (queued) | 200 solve (stored result)
+ * GET    /api/projects/:projectId/models/:modelId/solves   member/admin  solveListQuery    200 solveList
+ * GET    /api/projects/:projectId/solves/:solveId          member/admin  -                 200 solve
+ * GET    /api/projects/:projectId/solves/:solveId/events   member/admin  -                 200 text/event-stream (status, progress, done)
+ * POST   /api/projects/:projectId/solves/:solveId/cancel   lead/engineer -                 200 solve (finished already: 409 conflict)
  */
 export * from './errors.js';
 export * from './common.js';
@@ -51,3 +69,5 @@ export * from './projects.js';
 export * from './sif-target.js';
 export * from './sifs.js';
 export * from './permissions.js';
+export * from './models.js';
+export * from './solves.js';
