@@ -50,6 +50,15 @@ export const rateEvent = z.strictObject({
   mttrHours: hours.optional(),
   proofTest: proofTest.optional(),
   partialTest: partialTest.optional(),
+  /**
+   * Device type for the architectural constraints, IEC 61508-2:2010 7.4.4.1.2 (A: simple, failure modes
+   * well known) and 7.4.4.1.3 (B: complex). Optional; the results take B when it is not given.
+   */
+  deviceType: z.enum(['A', 'B']).optional(),
+  /** Systematic capability of the device, SC 1 to 4 (IEC 61508-2:2010 7.6.2.7). Optional. */
+  systematicCapability: z.number().int().min(1).max(4).optional(),
+  /** Error factor of the failure rates (95th over 50th percentile of a lognormal), for the uncertainty analysis. */
+  errorFactor: z.number().finite().min(1).max(100).optional(),
 });
 
 export const probabilityEvent = z.strictObject({

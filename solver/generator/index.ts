@@ -1,0 +1,1 @@
+export { generateModels, MAX_GENERATED_STATES, type GeneratedModels } from './generate-models.js';

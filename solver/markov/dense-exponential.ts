@@ -1,0 +1,163 @@
+/**
+ * Dense matrix exponential by Pade-13 scaling and squaring (N. J. Higham, "The scaling and squaring method
+ * for the matrix exponential revisited", SIAM J. Matrix Anal. Appl. 26(4), 2005, Algorithm 2.3 with
+ * m = 13 only). Matrices are square, row-major Float64Arrays of size n * n.
+ */
+
+const PADE_13 = [
+  64764752532480000, 32382376266240000, 7771770303897600, 1187353796428800, 129060195264000, 10559470521600,
+  670442572800, 33522128640, 1323241920, 40840800, 960960, 16380, 182, 1,
+];
+/** theta_13 of Higham (2005), Table 2.3: the largest 1-norm for which Pade-13 needs no scaling. */
+const THETA_13 = 5.371920351148152;
+
+/** C = A B for n x n row-major matrices (i-k-j order, so the inner loop runs along rows). */
+export function multiply(a: Float64Array, b: Float64Array, n: number, out = new Float64Array(n * n)): Float64Array {
+  out.fill(0);
+  for (let i = 0; i < n; i += 1) {
+    const rowOffset = i * n;
+    for (let k = 0; k < n; k += 1) {
+      const factor = a[rowOffset + k];
+      if (factor === 0) continue;
+      const bOffset = k * n;
+      for (let j = 0; j < n; j += 1) out[rowOffset + j] += factor * b[bOffset + j];
+    }
+  }
+  return out;
+}
+
+function oneNorm(a: Float64Array, n: number): number {
+  let best = 0;
+  for (let j = 0; j < n; j += 1) {
+    let sum = 0;
+    for (let i = 0; i < n; i += 1) sum += Math.abs(a[i * n + j]);
+    if (sum > best) best = sum;
+  }
+  return best;
+}
+
+/** Solves A X = B in place of B (n x n each) by LU with partial pivoting; A is overwritten. */
+function solveInPlace(a: Float64Array, b: Float64Array, n: number): void {
+  for (let column = 0; column < n; column += 1) {
+    let pivotRow = column;
+    let pivotValue = Math.abs(a[column * n + column]);
+    for (let row = column + 1; row < n; row += 1) {
+      const value = Math.abs(a[row * n + column]);
+      if (value > pivotValue) {
+        pivotValue = value;
+        pivotRow = row;
+      }
+    }
+    if (pivotValue === 0) throw new Error('matrix exponential: the Pade denominator is singular');
+    if (pivotRow !== column) {
+      for (let j = 0; j < n; j += 1) {
+        const swapA = a[column * n + j];
+        a[column * n + j] = a[pivotRow * n + j];
+        a[pivotRow * n + j] = swapA;
+        const swapB = b[column * n + j];
+        b[column * n + j] = b[pivotRow * n + j];
+        b[pivotRow * n + j] = swapB;
+      }
+    }
+    const pivot = a[column * n + column];
+    for (let row = column + 1; row < n; row += 1) {
+      const factor = a[row * n + column] / pivot;
+      if (factor === 0) continue;
+      a[row * n + column] = 0;
+      for (let j = column + 1; j < n; j += 1) a[row * n + j] -= factor * a[column * n + j];
+      for (let j = 0; j < n; j += 1) b[row * n + j] -= factor * b[column * n + j];
+    }
+  }
+  for (let column = n - 1; column >= 0; column -= 1) {
+    const pivot = a[column * n + column];
+    for (let j = 0; j < n; j += 1) b[column * n + j] /= pivot;
+    for (let row = 0; row < column; row += 1) {
+      const factor = a[row * n + column];
+      if (factor === 0) continue;
+      for (let j = 0; j < n; j += 1) b[row * n + j] -= factor * b[column * n + j];
+    }
+  }
+}
+
+/** Number of squarings Pade-13 needs for a matrix of the given 1-norm (Higham 2005, Algorithm 2.3). */
+export function squaringsFor(norm: number): number {
+  return norm > THETA_13 ? Math.max(0, Math.ceil(Math.log2(norm / THETA_13))) : 0;
+}
+
+/** exp(A) of an n x n row-major matrix. A is not modified. */
+export function expm(input: Float64Array, n: number): Float64Array {
+  const squarings = squaringsFor(oneNorm(input, n));
+  const scale = 2 ** -squarings;
+  const a = new Float64Array(n * n);
+  for (let index = 0; index < a.length; index += 1) a[index] = input[index] * scale;
+  const b = PADE_13;
+  const a2 = multiply(a, a, n);
+  const a4 = multiply(a2, a2, n);
+  const a6 = multiply(a4, a2, n);
+
+  const innerU = new Float64Array(n * n);
+  const innerV = new Float64Array(n * n);
+  for (let index = 0; index < innerU.length; index += 1) {
+    innerU[index] = b[13] * a6[index] + b[11] * a4[index] + b[9] * a2[index];
+    innerV[index] = b[12] * a6[index] + b[10] * a4[index] + b[8] * a2[index];
+  }
+  const u6 = multiply(a6, innerU, n);
+  const v6 = multiply(a6, innerV, n);
+  for (let index = 0; index < u6.length; index += 1) {
+    u6[index] += b[7] * a6[index] + b[5] * a4[index] + b[3] * a2[index];
+    v6[index] += b[6] * a6[index] + b[4] * a4[index] + b[2] * a2[index];
+  }
+  for (let i = 0; i < n; i += 1) {
+    u6[i * n + i] += b[1];
+    v6[i * n + i] += b[0];
+  }
+  const u = multiply(a, u6, n);
+  const denominator = new Float64Array(n * n);
+  const numerator = new Float64Array(n * n);
+  for (let index = 0; index < u.length; index += 1) {
+    denominator[index] = v6[index] - u[index];
+    numerator[index] = v6[index] + u[index];
+  }
+  solveInPlace(denominator, numerator, n);
+  let result = numerator;
+  let spare = new Float64Array(n * n);
+  for (let step = 0; step < squarings; step += 1) {
+    multiply(result, result, n, spare);
+    [result, spare] = [spare, result];
+  }
+  return result;
+}
+
+/**
+ * Propagator of a constant generator over a step and its integral applied to some column vectors, from one
+ * exponential of the augmented matrix [[Q h, B h], [0, 0]] (C. F. Van Loan, "Computing integrals involving
+ * the matrix exponential", IEEE Trans. Automatic Control 23(3), 1978): the top-left block is exp(Q h), the
+ * top-right block is the integral over [0, h] of exp(Q s) ds times B.
+ *
+ * @param generator n x n row-major generator Q (rows sum to zero).
+ * @param columns the columns of B, each of length n.
+ */
+export function propagatorWithIntegral(
+  generator: Float64Array,
+  n: number,
+  hours: number,
+  columns: readonly Float64Array[],
+): { propagator: Float64Array; integrals: Float64Array[] } {
+  const size = n + columns.length;
+  const augmented = new Float64Array(size * size);
+  for (let i = 0; i < n; i += 1) {
+    for (let j = 0; j < n; j += 1) augmented[i * size + j] = generator[i * n + j] * hours;
+    columns.forEach((column, c) => {
+      augmented[i * size + n + c] = column[i] * hours;
+    });
+  }
+  const full = expm(augmented, size);
+  const propagator = new Float64Array(n * n);
+  for (let i = 0; i < n; i += 1) propagator.set(full.subarray(i * size, i * size + n), i * n);
+  const integrals = columns.map((_, c) => {
+    const integral = new Float64Array(n);
+    for (let i = 0; i < n; i += 1) integral[i] = full[i * size + n + c];
+    return integral;
+  });
+  return { propagator, integrals };
+}
