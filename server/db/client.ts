@@ -3,6 +3,10 @@ import pg from 'pg';
 import * as schema from './schema/index.js';
 
 export type Database = NodePgDatabase<typeof schema>;
+/** The `tx` of `db.transaction(async (tx) => ...)`. */
+export type DatabaseTransaction = Parameters<Parameters<Database['transaction']>[0]>[0];
+/** Either: repositories that may run inside a transaction take this. */
+export type Queryable = Database | DatabaseTransaction;
 
 export interface Logger {
   info(message: string): void;

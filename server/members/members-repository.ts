@@ -1,7 +1,7 @@
 import { and, asc, count, eq } from 'drizzle-orm';
 import type { Member, ProjectRole } from '../../shared/api/projects.js';
-import type { Database } from '../db/client.js';
-import { projectMembers } from '../db/schema/projects.js';
+import type { Queryable } from '../db/client.js';
+import { projectMembers, projects } from '../db/schema/projects.js';
 import { users } from '../db/schema/users.js';
 import type { ProjectAccess } from '../projects/project-access.js';
 
@@ -10,7 +10,7 @@ export class MembersRepository {
   private readonly projectId: string;
 
   constructor(
-    private readonly db: Database,
+    private readonly db: Queryable,
     access: ProjectAccess,
   ) {
     this.projectId = access.project.id;
@@ -30,6 +30,11 @@ export class MembersRepository {
   async find(userId: string): Promise<Member | null> {
     const [member] = await this.select().where(and(eq(projectMembers.projectId, this.projectId), eq(projectMembers.userId, userId)));
     return member ?? null;
+  }
+
+  /** Locks the project row until the transaction ends, so two membership changes cannot both drop the last lead. */
+  async lockProject(): Promise<void> {
+    await this.db.select({ id: projects.id }).from(projects).where(eq(projects.id, this.projectId)).for('update');
   }
 
   async upsert(userId: string, role: ProjectRole): Promise<void> {

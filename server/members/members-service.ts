@@ -13,37 +13,43 @@ export class MembersService {
     private readonly user: SessionUser,
   ) {}
 
-  private async access(projectId: string): Promise<{ access: ProjectAccess; members: MembersRepository }> {
-    const access = await loadProjectAccess(this.db, this.user, projectId);
-    return { access, members: new MembersRepository(this.db, access) };
-  }
-
   async list(projectId: string): Promise<Member[]> {
-    const { members } = await this.access(projectId);
-    return members.list();
+    const access = await loadProjectAccess(this.db, this.user, projectId);
+    return new MembersRepository(this.db, access).list();
   }
 
   async put(projectId: string, userId: string, role: ProjectRole): Promise<Member> {
-    const { access, members } = await this.access(projectId);
-    requireAction(access, 'members.manage', 'manage members');
-    requireActiveProject(access);
+    const access = await this.managedProject(projectId);
     const target = await new UsersRepository(this.db).findById(userId);
     if (!target) throw apiErrors.notFound('no user with this id');
-    const existing = await members.find(userId);
-    if (!existing && target.disabled) throw apiErrors.conflict(`${target.username} is disabled and cannot join a project`);
-    if (existing?.role === 'lead' && role !== 'lead') await this.keepALead(members);
-    await members.upsert(userId, role);
+    await this.db.transaction(async (tx) => {
+      const members = new MembersRepository(tx, access);
+      await members.lockProject();
+      const existing = await members.find(userId);
+      if (!existing && target.disabled) throw apiErrors.conflict(`${target.username} is disabled and cannot join a project`);
+      if (existing?.role === 'lead' && role !== 'lead') await this.keepALead(members);
+      await members.upsert(userId, role);
+    });
     return { userId: target.id, username: target.username, displayName: target.displayName, role };
   }
 
   async remove(projectId: string, userId: string): Promise<void> {
-    const { access, members } = await this.access(projectId);
+    const access = await this.managedProject(projectId);
+    await this.db.transaction(async (tx) => {
+      const members = new MembersRepository(tx, access);
+      await members.lockProject();
+      const existing = await members.find(userId);
+      if (!existing) throw apiErrors.notFound('this user is not a member of the project');
+      if (existing.role === 'lead') await this.keepALead(members);
+      await members.remove(userId);
+    });
+  }
+
+  private async managedProject(projectId: string): Promise<ProjectAccess> {
+    const access = await loadProjectAccess(this.db, this.user, projectId);
     requireAction(access, 'members.manage', 'manage members');
     requireActiveProject(access);
-    const existing = await members.find(userId);
-    if (!existing) throw apiErrors.notFound('this user is not a member of the project');
-    if (existing.role === 'lead') await this.keepALead(members);
-    await members.remove(userId);
+    return access;
   }
 
   private async keepALead(members: MembersRepository): Promise<void> {

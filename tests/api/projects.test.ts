@@ -108,6 +108,22 @@ describe('members', () => {
     expect((await lead.put(`/api/projects/${world.projectA}/members/${world.userId.lead}`).send({ role: 'engineer' })).status).toBe(200);
   });
 
+  it('keeps a lead when two leads step down at the same time (exactly one succeeds)', async () => {
+    const lead = await signedInAgent(app, 'lead');
+    await lead.put(`/api/projects/${world.projectA}/members/${world.userId.engineer}`).send({ role: 'lead' });
+    const engineer = await signedInAgent(app, 'engineer');
+    const results = await Promise.all([
+      lead.put(`/api/projects/${world.projectA}/members/${world.userId.lead}`).send({ role: 'engineer' }),
+      engineer.delete(`/api/projects/${world.projectA}/members/${world.userId.engineer}`),
+    ]);
+    const statuses = results.map((response) => response.status);
+    expect(statuses.filter((status) => status === 409)).toHaveLength(1);
+    expect(statuses.filter((status) => status === 200 || status === 204)).toHaveLength(1);
+    const members = await lead.get(`/api/projects/${world.projectA}/members`);
+    const leads = (members.body as { role: string }[]).filter((member) => member.role === 'lead');
+    expect(leads).toHaveLength(1);
+  });
+
   it('names a bad role and answers 404 for an unknown user', async () => {
     const lead = await signedInAgent(app, 'lead');
     const badRole = await lead.put(`/api/projects/${world.projectA}/members/${world.userId.outsider}`).send({ role: 'owner' });
