@@ -3,7 +3,7 @@ import { createApp } from './app.js';
 import { createSessionStore } from './auth/session.js';
 import { storedSessionSecret } from './auth/session-secret.js';
 import { ConfigError, readConfig } from './config.js';
-import { createDatabase, createPool } from './db/client.js';
+import { createDatabase, createPool, isDatabaseUnavailable } from './db/client.js';
 import { runMigrations } from './db/migrate.js';
 import { consoleLogger as logger } from './logger.js';
 import { DEMO_USERS, seedDemoWorkspace } from './seed/demo-workspace.js';
@@ -75,6 +75,8 @@ async function main(): Promise<void> {
 main().catch((error: unknown) => {
   if (error instanceof ConfigError) {
     console.error(`Proofline cannot start:\n${error.message}`);
+  } else if (isDatabaseUnavailable(error)) {
+    console.error('Proofline cannot start: the database at DATABASE_URL does not answer (is PostgreSQL running? npm start starts it).');
   } else {
     console.error('Proofline could not start:', error);
   }
