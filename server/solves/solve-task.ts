@@ -1,3 +1,4 @@
+import { setPriority } from 'node:os';
 import type { MessagePort } from 'node:worker_threads';
 import type { ModelFile } from '../../shared/model-file.js';
 import type { SolveResult } from '../../shared/solve-result.js';
@@ -15,6 +16,14 @@ export interface SolveTask {
 }
 
 export type TaskMessage = { readonly kind: 'started' } | { readonly kind: 'progress'; readonly fraction: number; readonly stage: string };
+
+/**
+ * Nice value of the solver threads. On Linux the nice value belongs to each thread, and `setPriority(n)`
+ * (pid 0) sets it for the calling thread only. The request thread keeps its priority, so reads stay quick
+ * while every core is busy solving.
+ */
+const SOLVER_THREAD_NICE = 10;
+setPriority(SOLVER_THREAD_NICE);
 
 /** At most one progress message per this many milliseconds, besides the first and the last. */
 const PROGRESS_INTERVAL_MS = 100;
