@@ -78,12 +78,16 @@ export async function connectSolveEvents(options: SolveEventsOptions): Promise<S
       const notice = parseNotice(message.payload);
       if (notice) dispatch(notice);
     });
+    const lost = () => {
+      if (client === next) client = undefined;
+      scheduleReconnect();
+    };
     next.on('error', (error) => {
       options.log('solve notice connection failed', error);
       next.end().catch(() => undefined);
-      if (client === next) client = undefined;
-      scheduleReconnect();
+      lost();
     });
+    next.on('end', lost);
     await next.connect();
     await next.query(`LISTEN ${SOLVE_EVENTS_CHANNEL}`);
     if (closed) {

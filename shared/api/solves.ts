@@ -120,5 +120,3 @@ export const solveProgressEvent = z.object({
   stage: z.string().nullable(),
 });
 export type SolveProgressEvent = z.infer<typeof solveProgressEvent>;
-
-export const SOLVE_EVENT_NAMES = ['status', 'progress', 'done'] as const;
