@@ -1,12 +1,6 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject, signal } from '@angular/core';
-import {
-  project,
-  projectList,
-  type CreateProjectBody,
-  type Project,
-  type UpdateProjectBody,
-} from '../../../shared/api/projects.js';
+import { project, projectList, type CreateProjectBody, type Project } from '../../../shared/api/projects.js';
 import { parsed } from '../http/parse-response';
 
 /** The projects the signed-in user may see, and the changes made to them. */
@@ -37,16 +31,6 @@ export class ProjectCatalog {
     const created = await parsed('POST /api/projects', this.http.post('/api/projects', body), project);
     this.listed.update((projects) => [...projects, created].sort((a, b) => a.name.localeCompare(b.name)));
     return created;
-  }
-
-  async update(projectId: string, body: UpdateProjectBody): Promise<Project> {
-    const updated = await parsed(
-      `PATCH /api/projects/${projectId}`,
-      this.http.patch(`/api/projects/${encodeURIComponent(projectId)}`, body),
-      project,
-    );
-    this.replace(updated);
-    return updated;
   }
 
   async setArchived(projectId: string, archived: boolean): Promise<Project> {

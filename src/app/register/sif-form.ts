@@ -178,7 +178,7 @@ export function formValueOf(record: Sif): SifFormValue {
 const NUMBER_FIELDS: readonly (keyof SifFormValue)[] = ['targetValue', 'demandRatePerYear', 'missionHours'];
 
 /** Whether two form values of a field mean the same ("0.002" and "2e-3" do). */
-export function sameFieldValue(field: keyof SifFormValue, a: string, b: string): boolean {
+function sameFieldValue(field: keyof SifFormValue, a: string, b: string): boolean {
   if (NUMBER_FIELDS.includes(field)) {
     const left = readNumber(a);
     const right = readNumber(b);
