@@ -4,12 +4,12 @@ import type { SolveResult } from '../shared/solve-result.js';
 import { ModelError, SOLVER_VERSION, SolverUnavailableError, solveModel } from './index.js';
 
 /**
- * `npm run --silent solve -- model.json [--json] [--points N] [--method exact|montecarlo]`
+ * `npm run --silent solve -- model.json [--json] [--points N] [--method exact|montecarlo] [--samples N] [--seed S]`
  * Prints the result of one solve: one JSON object with --json, else a readable summary.
  * Exit codes: 0 solved, 2 the file or the model is wrong (each problem named by its path in the file),
  * 1 anything else.
  */
-const USAGE = 'usage: npm run --silent solve -- <model.json> [--json] [--points N] [--method exact|montecarlo]';
+const USAGE = 'usage: npm run --silent solve -- <model.json> [--json] [--points N] [--method exact|montecarlo] [--samples N] [--seed S]';
 
 function fail(lines: string[], code: number): never {
   for (const line of lines) process.stderr.write(`${line}\n`);
@@ -24,6 +24,9 @@ function summary(path: string, result: SolveResult): string {
     `PFH    ${result.pfh.toExponential(3)} /h`,
     `SIL    ${result.sil ?? 'below SIL 1'} (by ${result.demand === 'low' ? 'PFDavg' : 'PFH'})`,
   ];
+  if (result.interval) {
+    lines.push(`99 % interval: PFDavg ${result.interval.pfdAvg.lower.toExponential(3)} to ${result.interval.pfdAvg.upper.toExponential(3)}, PFH ${result.interval.pfh.lower.toExponential(3)} to ${result.interval.pfh.upper.toExponential(3)} (${result.samples} missions)`);
+  }
   if (result.errorBound !== undefined) lines.push(`relative error estimate of PFDavg: ${result.errorBound.toExponential(1)}`);
   if (result.simplified.length > 0) {
     lines.push('', 'simplified formulas:');
@@ -53,7 +56,7 @@ function main(): void {
   try {
     parsed = parseArgs({
       allowPositionals: true,
-      options: { json: { type: 'boolean' }, points: { type: 'string' }, method: { type: 'string' }, version: { type: 'boolean' } },
+      options: { json: { type: 'boolean' }, points: { type: 'string' }, method: { type: 'string' }, samples: { type: 'string' }, seed: { type: 'string' }, version: { type: 'boolean' } },
     });
   } catch (error) {
     fail([(error as Error).message, USAGE], 2);
@@ -68,6 +71,10 @@ function main(): void {
   if (method !== 'exact' && method !== 'montecarlo') fail([`--method must be "exact" or "montecarlo" (got "${method}")`], 2);
   const points = parsed.values.points === undefined ? undefined : Number(parsed.values.points);
   if (points !== undefined && (!Number.isInteger(points) || points < 2)) fail([`--points must be an integer of at least 2 (got "${parsed.values.points}")`], 2);
+  const samples = parsed.values.samples === undefined ? undefined : Number(parsed.values.samples);
+  if (samples !== undefined && (!Number.isInteger(samples) || samples < 1)) fail([`--samples must be a positive integer (got "${parsed.values.samples}")`], 2);
+  const seed = parsed.values.seed === undefined ? undefined : Number(parsed.values.seed);
+  if (seed !== undefined && !Number.isSafeInteger(seed)) fail([`--seed must be an integer (got "${parsed.values.seed}")`], 2);
 
   let text: string;
   try {
@@ -82,7 +89,7 @@ function main(): void {
     fail([`${path}: not valid JSON (${(error as Error).message})`], 2);
   }
   try {
-    const result = solveModel(model as Parameters<typeof solveModel>[0], { method, timePoints: points });
+    const result = solveModel(model as Parameters<typeof solveModel>[0], { method, timePoints: points, samples, seed });
     process.stdout.write(parsed.values.json ? `${JSON.stringify(result)}\n` : `${summary(path, result)}\n`);
   } catch (error) {
     if (error instanceof ModelError) fail([`${path}: the model is not valid:`, ...error.lines().map((line) => `  ${line}`)], 2);

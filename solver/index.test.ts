@@ -51,10 +51,11 @@ describe('solveModel', () => {
     ).toThrow(reason);
   });
 
-  it('refuses Markov models and Monte Carlo with a typed error until those engines are linked in', () => {
+  it('sends state models to the Markov engine and method montecarlo to the simulator (fault trees only)', () => {
     const markov: ModelFile = { format: 'proofline/model', version: 1, name: 'm', kind: 'markov', mission: { hours: 100, demand: 'low' }, states: [{ id: 'OK', initial: 1 }], transitions: [] };
-    expect(() => solveModel(markov)).toThrow(SolverUnavailableError);
-    expect(() => solveModel(base(), { method: 'montecarlo' })).toThrow(SolverUnavailableError);
+    expect(solveModel(markov).method).toBe('markov');
+    expect(solveModel(base(), { method: 'montecarlo', samples: 100 }).method).toBe('montecarlo');
+    expect(() => solveModel(markov, { method: 'montecarlo' })).toThrow(SolverUnavailableError);
   });
 });
 

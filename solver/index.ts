@@ -4,6 +4,8 @@ import type { SolveResult } from '../shared/solve-result.js';
 import { ModelError, SolverUnavailableError, type ModelIssue } from './common/model-error.js';
 import { BddNodeLimitError } from './fault-tree/bdd.js';
 import { solveFaultTree } from './fault-tree/solve-fault-tree.js';
+import { solveMarkovModel } from './markov/index.js';
+import { simulateFaultTreeModel } from './montecarlo/index.js';
 import type { SolveOptions } from './solve-options.js';
 
 export { ModelError, SolverUnavailableError, type ModelIssue } from './common/model-error.js';
@@ -44,11 +46,10 @@ export function solveModel(model: ModelFile, options: SolveOptions = {}): SolveR
     throw new RangeError(`timePoints must be an integer from 2 to 1,000,000 (got ${options.timePoints})`);
   }
   if (options.method === 'montecarlo') {
-    throw new SolverUnavailableError('Monte Carlo simulation is not supported by this build');
+    if (checked.kind !== 'fault-tree') throw new SolverUnavailableError('Monte Carlo simulation is for fault trees; a state model is solved exactly');
+    return simulateFaultTreeModel(checked, { ...options, solverVersion: SOLVER_VERSION });
   }
-  if (checked.kind === 'markov') {
-    throw new SolverUnavailableError('Markov models are not supported by this build');
-  }
+  if (checked.kind === 'markov') return solveMarkovModel(checked, { ...options, solverVersion: SOLVER_VERSION });
   try {
     return solveFaultTree(checked, { ...options, nodeLimit: DIAGRAM_NODE_LIMIT }, SOLVER_VERSION);
   } catch (error) {
