@@ -137,6 +137,12 @@ export const markovTransition = z.strictObject({
   to: modelItemId,
   rate: rate,
   label: z.string().max(200).optional(),
+  /**
+   * A detected (revealed) failure: it moves probability like any transition, but PFH, the frequency of
+   * dangerous undetected failures of the function, leaves it out (the convention of IEC 61508-6 B.3.3,
+   * where a detected failure leads to the safe state or to repair). Default false.
+   */
+  detected: z.boolean().optional(),
 });
 export type MarkovTransition = z.infer<typeof markovTransition>;
 
