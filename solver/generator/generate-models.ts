@@ -267,7 +267,7 @@ function buildChain(groups: readonly GroupPlan[], sharedCrew: boolean): ChainTex
   const keyOf = (state: GroupState[]) => state.map((group) => group.join('')).join('|');
   const index = new Map<string, number>();
   const states: GroupState[][] = [];
-  const transitions: { from: number; to: number; rate: number }[] = [];
+  const transitions: RawTransition[] = [];
   const testMoves: { from: number; to: number }[][] = schedules.map(() => []);
   const visit = (state: GroupState[]): number => {
     const canonical = state.map((group, position) => canonicalGroup(groups[position], group));
@@ -286,8 +286,8 @@ function buildChain(groups: readonly GroupPlan[], sharedCrew: boolean): ChainTex
   visit(initial);
   for (let position = 0; position < states.length; position += 1) {
     const state = states[position];
-    for (const { target, rate } of stateTransitions(groups, state, sharedCrew)) {
-      if (rate > 0) transitions.push({ from: position, to: visit(target), rate });
+    for (const { target, rate, detected } of stateTransitions(groups, state, sharedCrew)) {
+      if (rate > 0) transitions.push({ from: position, to: visit(target), rate, detected: detected ?? false });
     }
     schedules.forEach((schedule, scheduleIndex) => {
       const target = applyScheduleTest(groups, state, schedule);
@@ -304,7 +304,7 @@ function buildChain(groups: readonly GroupPlan[], sharedCrew: boolean): ChainTex
       ...(position === 0 ? { initial: 1 } : {}),
       ...(isDown(groups, state) ? { down: true } : {}),
     })),
-    transitions: merged.map((transition) => ({ from: ids[transition.from], to: ids[transition.to], rate: transition.rate })),
+    transitions: merged.map((transition) => ({ from: ids[transition.from], to: ids[transition.to], rate: transition.rate, ...(transition.detected ? { detected: true } : {}) })),
     ...(schedules.length > 0
       ? {
           tests: schedules
@@ -355,7 +355,7 @@ function isDown(groups: readonly GroupPlan[], state: GroupState[]): boolean {
   });
 }
 
-function* stateTransitions(groups: readonly GroupPlan[], state: GroupState[], sharedCrew: boolean): Generator<{ target: GroupState[]; rate: number }> {
+function* stateTransitions(groups: readonly GroupPlan[], state: GroupState[], sharedCrew: boolean): Generator<{ target: GroupState[]; rate: number; detected?: boolean }> {
   const change = (groupIndex: number, slot: number, value: number): GroupState[] =>
     state.map((group, position) => (position === groupIndex ? group.map((entry, index) => (index === slot ? value : entry)) : group));
   const crewOn = sharedCrew ? firstUnderRepair(groups, state) : undefined;
@@ -369,7 +369,7 @@ function* stateTransitions(groups: readonly GroupPlan[], state: GroupState[], sh
       if (condition[slot] === OK) {
         yield { target: change(groupIndex, slot, HIDDEN), rate: channel.lambdaDU * channel.coverage };
         yield { target: change(groupIndex, slot, NEVER_FOUND), rate: channel.lambdaDU * (1 - channel.coverage) };
-        yield { target: change(groupIndex, slot, REPAIR), rate: channel.lambdaDD + channel.lambdaSD };
+        yield { target: change(groupIndex, slot, REPAIR), rate: channel.lambdaDD + channel.lambdaSD, detected: true };
       } else if (condition[slot] === REPAIR && repairs(slot)) {
         yield { target: change(groupIndex, slot, OK), rate: 1 / channel.mttrHours };
       }
@@ -383,7 +383,7 @@ function* stateTransitions(groups: readonly GroupPlan[], state: GroupState[], sh
       yield { target: change(groupIndex, size, OK), rate: 1 / shared.mttrHours };
     }
     if (condition[size + 1] === OK) {
-      yield { target: change(groupIndex, size + 1, REPAIR), rate: shared.lambdaDD };
+      yield { target: change(groupIndex, size + 1, REPAIR), rate: shared.lambdaDD, detected: true };
     } else if (repairs(size + 1)) {
       yield { target: change(groupIndex, size + 1, OK), rate: 1 / shared.mttrHours };
     }
@@ -412,11 +412,19 @@ function applyScheduleTest(groups: readonly GroupPlan[], state: GroupState[], sc
   return next;
 }
 
-function mergeTransitions(transitions: { from: number; to: number; rate: number }[]): { from: number; to: number; rate: number }[] {
-  const merged = new Map<string, { from: number; to: number; rate: number }>();
+interface RawTransition {
+  readonly from: number;
+  readonly to: number;
+  rate: number;
+  readonly detected: boolean;
+}
+
+/** Sums parallel transitions; detected and undetected ones stay apart (PFH counts only the latter). */
+function mergeTransitions(transitions: RawTransition[]): RawTransition[] {
+  const merged = new Map<string, RawTransition>();
   for (const transition of transitions) {
     if (transition.from === transition.to) continue;
-    const key = `${transition.from}/${transition.to}`;
+    const key = `${transition.from}/${transition.to}/${transition.detected}`;
     const existing = merged.get(key);
     if (existing) existing.rate += transition.rate;
     else merged.set(key, { ...transition });

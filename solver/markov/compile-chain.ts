@@ -30,7 +30,7 @@ export interface CompiledChain {
   readonly inSource: Int32Array;
   readonly inRate: Float64Array;
   readonly exitRate: Float64Array;
-  /** For an up state, its total rate into down states (the failure frequency it carries); 0 when down. */
+  /** For an up state, its total rate into down states by undetected failures (what PFH counts); 0 when down. */
   readonly downFlowRate: Float64Array;
   readonly tests: readonly CompiledTest[];
   readonly nonzeros: number;
@@ -116,7 +116,7 @@ function compileChain(id: string, label: string, chain: Chain, missionHours: num
     inSource[slot] = from;
     inRate[slot] = transition.rate;
     exitRate[from] += transition.rate;
-    if (down[from] === 0 && down[to] === 1) downFlowRate[from] += transition.rate;
+    if (down[from] === 0 && down[to] === 1 && !transition.detected) downFlowRate[from] += transition.rate;
   }
   const tests = (chain.tests ?? []).map((test, testIndex) => compileTest(test, testIndex, index, missionHours));
   return {

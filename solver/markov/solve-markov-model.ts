@@ -29,7 +29,8 @@ export interface MarkovSolveOptions extends SolveOptions {
  * Solves a multi-phase Markov model: the transient distribution of each chain between tests, the test
  * moves applied at each test time, PFD(t) = probability of the down states on a grid holding every test
  * time, PFDavg as the exact integral of PFD(t), PFDmax, PFH (time-averaged frequency of the rate
- * transitions from up states into down states; test moves are planned, not failures, and do not count),
+ * transitions from up states into down states, except those marked `detected`; test moves are planned,
+ * not failures, and do not count),
  * RRF = 1 / PFDavg and the SIL of IEC 61508-1 Tables 2 and 3.
  *
  * Each chain (the main chain and each independent part) is solved with the method of the lower cost
