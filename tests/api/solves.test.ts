@@ -254,7 +254,8 @@ describe('solves: cancel, time limit, crashes', () => {
     expect(failed.error).toBe('stopped: the solve ran past its time limit of 3 s (SOLVE_TIME_LIMIT_SECONDS)');
     const ran = new Date(failed.finishedAt!).getTime() - new Date(failed.startedAt!).getTime();
     expect(ran).toBeGreaterThanOrEqual(TIME_LIMIT_MS - 50);
-    expect(ran).toBeLessThan(TIME_LIMIT_MS + 3000);
+    // Upper bound generous: a worker thread replaced by the previous test may take seconds to start on a busy machine.
+    expect(ran).toBeLessThan(TIME_LIMIT_MS + 10_000);
   });
 
   it('marks the job of a crashed worker failed, replaces the worker and keeps serving', async () => {
@@ -318,6 +319,13 @@ describe('solves: stored results', () => {
     // The same content in another model (another name and layout do not count) hits the store too.
     const twin = await createModel(engineer, { ...singleSwitch(), layout: { 'PSH-2101': { x: 1, y: 2 } } });
     expect((await startDraftSolve(engineer, twin)).status).toBe(200);
+
+    // Key order is not content: the same file written with its keys reversed hits the store as well.
+    const reversed = JSON.parse(JSON.stringify(singleSwitch(), (_key, value: unknown) =>
+      value && typeof value === 'object' && !Array.isArray(value) ? Object.fromEntries(Object.entries(value).reverse()) : value,
+    )) as FaultTreeModel;
+    expect(Object.keys(reversed)[0]).toBe('top');
+    expect((await startDraftSolve(engineer, await createModel(engineer, reversed))).status).toBe(200);
 
     const otherSettings = await startDraftSolve(engineer, modelId, { timePoints: 500 });
     expect(otherSettings.status).toBe(202);
