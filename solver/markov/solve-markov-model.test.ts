@@ -1,0 +1,279 @@
+import { expm as mathjsExpm, matrix } from 'mathjs';
+import { describe, expect, it } from 'vitest';
+import { markovModel, type MarkovModel } from '../../shared/model-file.js';
+import { solveResult } from '../../shared/solve-result.js';
+import { ModelError } from '../common/model-error.js';
+import { solveMarkovModel } from './index.js';
+
+const YEAR = 8760;
+const METHODS = ['dense', 'uniformization'] as const;
+
+function model(fields: Partial<MarkovModel> & Pick<MarkovModel, 'states' | 'transitions'>, hours = 10 * YEAR): MarkovModel {
+  return { format: 'proofline/model', version: 1, name: 'test chain', kind: 'markov', mission: { hours, demand: 'low' }, ...fields };
+}
+
+/** 1oo1 with DU failures only and perfect periodic proof tests that restore at once. */
+function oneOutOfOne(lambda: number, interval: number, hours = 10 * YEAR): MarkovModel {
+  return model(
+    {
+      states: [{ id: 'OK', initial: 1 }, { id: 'DU', down: true }],
+      transitions: [{ from: 'OK', to: 'DU', rate: lambda }],
+      tests: [{ intervalHours: interval, moves: [{ from: 'DU', to: 'OK', probability: 1 }] }],
+    },
+    hours,
+  );
+}
+
+/** 1oo2 with beta common cause, DU only, perfect tests restoring at once (states: failed channels). */
+function oneOutOfTwo(lambda: number, beta: number, interval: number): MarkovModel {
+  const independent = (1 - beta) * lambda;
+  return model({
+    states: [{ id: 'F0', initial: 1 }, { id: 'F1' }, { id: 'F2', down: true }],
+    transitions: [
+      { from: 'F0', to: 'F1', rate: 2 * independent },
+      { from: 'F0', to: 'F2', rate: beta * lambda },
+      { from: 'F1', to: 'F2', rate: independent + beta * lambda },
+    ],
+    tests: [{ intervalHours: interval, moves: [{ from: 'F1', to: 'F0', probability: 1 }, { from: 'F2', to: 'F0', probability: 1 }] }],
+  });
+}
+
+/** A stiff repairable chain: 1oo2 with DD failures repaired at 1/8 per hour and DU found by tests. */
+function repairable(): MarkovModel {
+  return model({
+    states: [{ id: 'OK', initial: 1 }, { id: 'D1' }, { id: 'U1' }, { id: 'DD', down: true }, { id: 'DU', down: true }, { id: 'UU', down: true }, { id: 'R', down: true }],
+    transitions: [
+      { from: 'OK', to: 'D1', rate: 2 * 4e-6, detected: true },
+      { from: 'OK', to: 'U1', rate: 2 * 1e-6 },
+      { from: 'D1', to: 'OK', rate: 0.125 },
+      { from: 'D1', to: 'DD', rate: 4e-6, detected: true },
+      { from: 'D1', to: 'DU', rate: 1e-6 },
+      { from: 'U1', to: 'DU', rate: 4e-6, detected: true },
+      { from: 'U1', to: 'UU', rate: 1e-6 },
+      { from: 'DD', to: 'D1', rate: 0.25 },
+      { from: 'DU', to: 'U1', rate: 0.125 },
+      { from: 'R', to: 'OK', rate: 0.125 },
+    ],
+    tests: [{ intervalHours: 4380, moves: [{ from: 'U1', to: 'R', probability: 1 }, { from: 'UU', to: 'R', probability: 1 }, { from: 'DU', to: 'D1', probability: 1 }] }],
+  });
+}
+
+function generatorRows(chain: MarkovModel): number[][] {
+  const index = new Map(chain.states.map((state, position) => [state.id, position]));
+  const n = chain.states.length;
+  const rows = Array.from({ length: n }, () => new Array<number>(n).fill(0));
+  for (const transition of chain.transitions) {
+    const from = index.get(transition.from)!;
+    rows[from][index.get(transition.to)!] += transition.rate;
+    rows[from][from] -= transition.rate;
+  }
+  return rows;
+}
+
+/** p0 exp(Q t) by mathjs expm, the reference library. */
+function referenceDistribution(chain: MarkovModel, p0: number[], hours: number): number[] {
+  const q = generatorRows(chain).map((row) => row.map((value) => value * hours));
+  const e = mathjsExpm(matrix(q)).toArray() as number[][];
+  return e[0].map((_, j) => p0.reduce((sum, value, i) => sum + value * e[i][j], 0));
+}
+
+describe('Markov engine: transient probabilities against mathjs expm', () => {
+  it('matches p0 exp(Q t) at every curve time of a chain without tests, both methods, to 1e-9', () => {
+    // Reference: mathjs expm (npm, general-purpose library). Tolerance 1e-9 absolute per state.
+    const chain = model(
+      {
+        states: [{ id: 'A', initial: 0.7 }, { id: 'B', initial: 0.3 }, { id: 'C', down: true }, { id: 'D' }],
+        transitions: [
+          { from: 'A', to: 'B', rate: 0.02 },
+          { from: 'B', to: 'C', rate: 0.01 },
+          { from: 'C', to: 'A', rate: 0.05 },
+          { from: 'B', to: 'D', rate: 0.003 },
+          { from: 'D', to: 'A', rate: 0.1 },
+        ],
+      },
+      2000,
+    );
+    for (const method of METHODS) {
+      const result = solveMarkovModel(chain, { chainMethod: method, timePoints: 20 });
+      result.curve.hours.forEach((hours, point) => {
+        const expected = referenceDistribution(chain, [0.7, 0.3, 0, 0], hours);
+        result.states!.forEach((state, index) => expect(Math.abs(state.probability[point] - expected[index])).toBeLessThan(1e-9));
+        expect(Math.abs(result.curve.pfd[point] - expected[2])).toBeLessThan(1e-9);
+      });
+    }
+  });
+
+  it('applies test moves between phases: matches phase-by-phase mathjs propagation at the test times', () => {
+    // Reference: mathjs expm per phase, moves applied by hand. Tolerance 1e-9 absolute.
+    const chain = repairable();
+    const hours = chain.mission.hours;
+    const result = solveMarkovModel(chain, { chainMethod: 'dense', timePoints: 40 });
+    let p = [1, 0, 0, 0, 0, 0, 0];
+    const moves: Record<number, number> = { 2: 6, 5: 6, 4: 1 };
+    for (let time = 4380; time < hours; time += 4380) {
+      p = referenceDistribution(chain, p, 4380);
+      const before = result.curve.hours.indexOf(time);
+      expect(before).toBeGreaterThan(0);
+      expect(Math.abs(result.curve.pfd[before] - (p[3] + p[4] + p[5] + p[6]))).toBeLessThan(1e-9);
+      const moved = [...p];
+      for (const [from, to] of Object.entries(moves)) {
+        moved[to] += p[Number(from)];
+        moved[Number(from)] = 0;
+      }
+      p = moved;
+      expect(result.curve.hours[before + 1]).toBe(time);
+      expect(Math.abs(result.curve.pfd[before + 1] - (p[3] + p[4] + p[5] + p[6]))).toBeLessThan(1e-9);
+    }
+  });
+});
+
+describe('Markov engine: closed forms of periodically tested systems', () => {
+  it('1oo1: PFDavg = 1 - (1 - e^(-lambda tau)) / (lambda tau), PFDmax = 1 - e^(-lambda tau), both methods, to 1e-8', () => {
+    // Rausand & Hoyland, System Reliability Theory (2nd ed.), periodically tested item with perfect tests
+    // (the exact average unavailability over a test interval; from memory of ch. 10). Mission = 10 tau.
+    // PFH: lambda times the time-average of e^(-lambda t) = (1 - e^(-lambda tau)) / tau (exact).
+    const lambda = 2e-6;
+    const tau = YEAR;
+    const exact = 1 - -Math.expm1(-lambda * tau) / (lambda * tau);
+    for (const method of METHODS) {
+      const result = solveMarkovModel(oneOutOfOne(lambda, tau), { chainMethod: method });
+      expect(Math.abs(result.pfdAvg - exact) / exact).toBeLessThan(1e-8);
+      expect(Math.abs(result.pfdMax - -Math.expm1(-lambda * tau))).toBeLessThan(1e-12);
+      expect(Math.abs(result.pfh - -Math.expm1(-lambda * tau) / tau) / result.pfh).toBeLessThan(1e-8);
+      expect(result.rrf).toBeCloseTo(1 / result.pfdAvg, 6);
+      expect(result.sil).toBe(2);
+      expect(solveResult.safeParse(result).success).toBe(true);
+    }
+  });
+
+  it('1oo2 with beta: PFDavg equals the exact integral of 1 - e^(-beta l t)(1 - (1 - e^(-(1-beta) l t))^2), to 1e-8', () => {
+    // Rausand & Hoyland (2nd ed.), beta-factor model of a periodically tested 1oo2 (ch. 10, from memory):
+    // PFD(t) = 1 - e^(-b t) [1 - (1 - e^(-a t))^2], a = (1-beta) lambda, b = beta lambda; integrated in
+    // closed form: PFDavg = 1 - [2 (1 - e^(-(a+b) tau)) / (a+b) - (1 - e^(-(2a+b) tau)) / (2a+b)] / tau.
+    const lambda = 5e-6;
+    const beta = 0.1;
+    const tau = YEAR;
+    const a = (1 - beta) * lambda;
+    const b = beta * lambda;
+    const exact = 1 - ((2 * -Math.expm1(-(a + b) * tau)) / (a + b) - -Math.expm1(-(2 * a + b) * tau) / (2 * a + b)) / tau;
+    for (const method of METHODS) {
+      const result = solveMarkovModel(oneOutOfTwo(lambda, beta, tau), { chainMethod: method });
+      expect(Math.abs(result.pfdAvg - exact) / exact).toBeLessThan(1e-8);
+    }
+  });
+});
+
+describe('Markov engine: methods and parts agree', () => {
+  it('dense and uniformization agree on a stiff repairable chain (PFDavg and PFH to 1e-8, curve to 1e-10)', () => {
+    // Internal consistency: two unrelated algorithms on the same chain; tolerances as stated.
+    const dense = solveMarkovModel(repairable(), { chainMethod: 'dense' });
+    const sparse = solveMarkovModel(repairable(), { chainMethod: 'uniformization' });
+    expect(Math.abs(dense.pfdAvg - sparse.pfdAvg) / dense.pfdAvg).toBeLessThan(1e-8);
+    expect(Math.abs(dense.pfh - sparse.pfh) / dense.pfh).toBeLessThan(1e-8);
+    dense.curve.pfd.forEach((value, point) => expect(Math.abs(value - sparse.curve.pfd[point])).toBeLessThan(1e-10));
+    expect(dense.algorithm).toMatch(/Pade-13/);
+    expect(sparse.algorithm).toMatch(/uniformization/);
+  });
+
+  it('independent parts in series equal the product chain: PFDavg and PFH to 1e-7', () => {
+    // Exact reference: the Kronecker product chain of two 1oo1 channels with different rates and test
+    // intervals, down when either is down, solved as one chain. Tolerance 1e-7 relative (the parts' cross
+    // term is integrated by Simpson's rule).
+    const first = oneOutOfOne(2e-6, YEAR);
+    const second = oneOutOfOne(7e-6, YEAR / 2);
+    const series: MarkovModel = { ...first, parts: [{ id: 'B', states: second.states, transitions: second.transitions, tests: second.tests }] };
+    const product = model({
+      states: [{ id: 'OO', initial: 1 }, { id: 'UO', down: true }, { id: 'OU', down: true }, { id: 'UU', down: true }],
+      transitions: [
+        { from: 'OO', to: 'UO', rate: 2e-6 },
+        { from: 'OU', to: 'UU', rate: 2e-6 },
+        { from: 'OO', to: 'OU', rate: 7e-6 },
+        { from: 'UO', to: 'UU', rate: 7e-6 },
+      ],
+      tests: [
+        { intervalHours: YEAR, moves: [{ from: 'UO', to: 'OO', probability: 1 }, { from: 'UU', to: 'OU', probability: 1 }] },
+        { intervalHours: YEAR / 2, moves: [{ from: 'OU', to: 'OO', probability: 1 }, { from: 'UU', to: 'UO', probability: 1 }] },
+      ],
+    });
+    const combined = solveMarkovModel(series, {});
+    const reference = solveMarkovModel(product, {});
+    expect(combined.algorithm).toMatch(/2 independent parts/);
+    expect(Math.abs(combined.pfdAvg - reference.pfdAvg) / reference.pfdAvg).toBeLessThan(1e-7);
+    expect(Math.abs(combined.pfh - reference.pfh) / reference.pfh).toBeLessThan(1e-7);
+    expect(combined.states!.map((state) => state.id)).toEqual(['OK', 'DU', 'B/OK', 'B/DU']);
+  });
+
+  it('leaves transitions marked detected out of PFH but not out of PFD', () => {
+    // Definition (IEC 61508-6 B.3.3 convention): a 1oo1 whose only failure is detected has PFH 0 and
+    // PFDavg = lambda / (lambda + mu) (1 - (1 - e^(-(lambda+mu) T)) / ((lambda+mu) T)) (exact, two-state
+    // chain). Tolerance 1e-9 relative.
+    const lambda = 1e-4;
+    const mu = 0.125;
+    const hours = 1000;
+    const chain = model({ states: [{ id: 'OK', initial: 1 }, { id: 'DD', down: true }], transitions: [{ from: 'OK', to: 'DD', rate: lambda, detected: true }, { from: 'DD', to: 'OK', rate: mu }] }, hours);
+    const s = lambda + mu;
+    const exact = (lambda / s) * (1 - -Math.expm1(-s * hours) / (s * hours));
+    const result = solveMarkovModel(chain, {});
+    expect(result.pfh).toBe(0);
+    expect(Math.abs(result.pfdAvg - exact) / exact).toBeLessThan(1e-9);
+  });
+});
+
+describe('Markov engine: bad input and cancellation', () => {
+  const bad = (change: (value: MarkovModel) => void) => {
+    const value = structuredClone(repairable());
+    change(value);
+    return value;
+  };
+  const issuesOf = (value: MarkovModel) => {
+    try {
+      solveMarkovModel(value, {});
+    } catch (error) {
+      expect(error).toBeInstanceOf(ModelError);
+      return (error as ModelError).lines().join('\n');
+    }
+    throw new Error('expected a ModelError');
+  };
+
+  it('names unknown states, negative rates, self transitions, missing initial distribution and bad test rows', () => {
+    expect(issuesOf(bad((value) => (value.transitions[0].to = 'NOPE')))).toMatch(/transitions\[0\]\.to: .*unknown state "NOPE"/);
+    expect(issuesOf(bad((value) => (value.transitions[1].rate = -1)))).toMatch(/transitions\[1\]\.rate: the rate must be a finite number >= 0/);
+    expect(issuesOf(bad((value) => (value.transitions[2].rate = Number.NaN)))).toMatch(/transitions\[2\]\.rate/);
+    expect(issuesOf(bad((value) => (value.transitions[0].to = 'OK')))).toMatch(/goes from "OK" into the same state/);
+    expect(issuesOf(bad((value) => (value.states[0].initial = undefined)))).toMatch(/initial probabilities sum to 0, not 1/);
+    expect(issuesOf(bad((value) => (value.tests![0].moves[0].probability = 0.4)))).toMatch(/tests\[0\]\.moves: .*moves out of "U1" sum to 0.4, not 1/);
+    expect(issuesOf(bad((value) => (value.tests![0].moves[0].from = 'GHOST')))).toMatch(/unknown state "GHOST"/);
+    expect(issuesOf(bad((value) => (value.tests![0].firstHours = 1e9)))).toMatch(/first test at .* after the mission end/);
+  });
+
+  it('refuses a model over 2,000,000 generator entries at once, without building it', () => {
+    const state = { id: 'S' };
+    const huge = model({ states: new Array(2_000_001).fill(state), transitions: [] });
+    const started = performance.now();
+    expect(issuesOf(huge)).toMatch(/2,000,001 generator entries .* at most 2,000,000/);
+    expect(performance.now() - started).toBeLessThan(5000);
+  });
+
+  it('checks the schema the same way (the zod model rejects what the engine rejects)', () => {
+    expect(markovModel.safeParse(bad((value) => (value.transitions[1].rate = -1))).success).toBe(false);
+    expect(markovModel.safeParse(repairable()).success).toBe(true);
+  });
+
+  it('stops with the signal reason when cancelled between phases, and reports progress up to 1', () => {
+    const reason = new Error('cancelled by the user');
+    const controller = new AbortController();
+    expect(() =>
+      solveMarkovModel(repairable(), {
+        chainMethod: 'uniformization',
+        signal: controller.signal,
+        onProgress: (fraction) => {
+          if (fraction > 0.3) controller.abort(reason);
+        },
+      }),
+    ).toThrow(reason);
+    const fractions: number[] = [];
+    solveMarkovModel(repairable(), { onProgress: (fraction) => fractions.push(fraction) });
+    expect(fractions[fractions.length - 1]).toBe(1);
+    fractions.forEach((fraction, index) => index > 0 && expect(fraction).toBeGreaterThanOrEqual(fractions[index - 1]));
+  });
+});
