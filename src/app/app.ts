@@ -1,11 +1,14 @@
-import { ChangeDetectionStrategy, Component } from '@angular/core';
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { RouterOutlet } from '@angular/router';
+import { ThemePreference } from './shell/theme-preference';
 
-/** The root: every screen, the sign-in page included, is a route. */
+/** The root: every screen, the sign-in page included, is a route; the chosen theme applies to all. */
 @Component({
   selector: 'pl-root',
   imports: [RouterOutlet],
   template: '<router-outlet />',
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
-export class App {}
+export class App {
+  protected readonly theme = inject(ThemePreference);
+}

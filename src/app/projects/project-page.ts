@@ -9,6 +9,7 @@ import { RouterLink } from '@angular/router';
 import { canDo } from '../../../shared/api/permissions.js';
 import type { Project } from '../../../shared/api/projects.js';
 import { SessionStore } from '../auth/session-store';
+import { isApiError } from '../errors/api-error';
 import { SifRegisterTable } from '../register/sif-register-table';
 import { confirmWith } from '../shell/confirm-dialog';
 import { ProjectCatalog } from './project-catalog';
@@ -33,6 +34,8 @@ export class ProjectPage {
   readonly projectId = input.required<string>();
 
   protected readonly project = signal<Project | null>(null);
+  /** Why the project could not be shown (unknown, or not one the user is a member of). */
+  protected readonly missing = signal<string | null>(null);
   protected readonly canArchive = computed(() => this.allows('project.archive'));
   protected readonly roleLabel = roleLabel;
 
@@ -69,12 +72,17 @@ export class ProjectPage {
   }
 
   private async load(projectId: string): Promise<void> {
+    this.missing.set(null);
     try {
       const loaded = await this.catalog.get(projectId);
       this.project.set(loaded);
       this.title.setTitle(`${loaded.name} · Proofline`);
     } catch (error) {
-      this.errorHandler.handleError(error);
+      if (isApiError(error, 404)) {
+        this.missing.set('There is no such project, or you are not one of its members.');
+      } else {
+        this.errorHandler.handleError(error);
+      }
     }
   }
 }

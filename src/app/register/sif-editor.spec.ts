@@ -210,6 +210,24 @@ describe('SifEditor', () => {
     });
   });
 
+  it('says so when the SIF is not there or not visible to the user (404)', async () => {
+    TestBed.configureTestingModule({
+      providers: appTestProviders([{ path: 'projects/:projectId/sifs/:sifId', component: SifEditor }]),
+    });
+    http = TestBed.inject(HttpTestingController);
+    const harness = await RouterTestingHarness.create();
+    const navigation = harness.navigateByUrl(`/projects/${PROJECT_ID}/sifs/missing-sif`);
+    await settle(harness.fixture);
+    http.expectOne(`/api/projects/${PROJECT_ID}`).flush(aProject());
+    http.expectOne(`${SIFS_URL}/missing-sif`).flush({ error: { code: 'not_found', message: 'no such SIF' } }, { status: 404, statusText: 'Not Found' });
+    await navigation;
+    await settle(harness.fixture);
+    const element = harness.fixture.nativeElement as HTMLElement;
+    expect(element.querySelector('h1')?.textContent?.trim()).toBe('SIF not found');
+    expect(element.querySelector('[role=alert]')?.textContent).toContain('There is no such SIF');
+    expect(element.querySelector('form')).toBeNull();
+  });
+
   describe('what each role may do (from myRole)', () => {
     it('gives a viewer a read-only form without a save button', async () => {
       const { loader, input, select } = await open({ record: aSif(), role: 'viewer' });

@@ -85,6 +85,8 @@ export class SifEditor {
   protected readonly base = signal<Sif | null>(null);
   protected readonly busy = signal(false);
   protected readonly loaded = signal(false);
+  /** Why the SIF could not be shown (unknown, or in a project the user is not a member of). */
+  protected readonly missing = signal<string | null>(null);
 
   protected readonly demandModes = SIF_DEMAND_MODES;
   protected readonly demandModeLabels = DEMAND_MODE_LABELS;
@@ -277,6 +279,7 @@ export class SifEditor {
 
   private async load(projectId: string, sifId: string | undefined): Promise<void> {
     this.loaded.set(false);
+    this.missing.set(null);
     try {
       const [project, record] = await Promise.all([
         this.catalog.get(projectId),
@@ -292,7 +295,11 @@ export class SifEditor {
       }
       this.loaded.set(true);
     } catch (error) {
-      this.errorHandler.handleError(error);
+      if (isApiError(error, 404)) {
+        this.missing.set('There is no such SIF, or it is in a project you are not a member of.');
+      } else {
+        this.errorHandler.handleError(error);
+      }
     }
   }
 }
