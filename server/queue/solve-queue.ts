@@ -17,7 +17,7 @@ export interface SolveQueueOptions {
 }
 
 export interface SolveQueue {
-  /** Queues a solve; the job expires (and pg-boss fails it) after `expireInSeconds`. Returns the job id. */
+  /** Queues a solve; a job active longer than `expireInSeconds` is failed by pg-boss. Returns the job id. */
   send(job: SolveJob, expireInSeconds: number): Promise<string>;
   /** Drops a job that no solver process has taken yet. */
   cancel(jobId: string): Promise<void>;
@@ -44,12 +44,14 @@ export async function startSolveQueue(options: SolveQueueOptions): Promise<Solve
   });
   boss.on('error', (error) => options.log('job queue error', error));
   await boss.start();
-  await boss.createQueue(SOLVE_QUEUE, { name: SOLVE_QUEUE, retryLimit: 0 });
+  await boss.createQueue(SOLVE_QUEUE, { name: SOLVE_QUEUE });
   const workerIds: string[] = [];
 
   return {
     async send(job, expireInSeconds) {
-      const id = await boss.send(SOLVE_QUEUE, { ...job }, { retryLimit: 0, expireInSeconds: Math.max(1, Math.ceil(expireInSeconds)) });
+      // Retries are safe: a handler only claims a solve that is still queued, so a retry after a database
+      // outage runs it, and a retry of a solve already taken does nothing.
+      const id = await boss.send(SOLVE_QUEUE, { ...job }, { retryLimit: 3, retryDelay: 5, expireInSeconds: Math.max(1, Math.ceil(expireInSeconds)) });
       if (id === null) throw new Error('the job queue refused the solve job');
       return id;
     },
