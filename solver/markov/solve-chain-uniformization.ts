@@ -117,12 +117,16 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
     point = firstPoint + segment.steps + 1;
 
     if (rate > 0) {
-      let tail = 1;
+      // P(N > k) as suffix sums of the window, so small tails keep their relative accuracy.
+      const survival = new Float64Array(terms).fill(1);
+      let tail = 0;
+      for (let k = terms - 1; k >= last.left; k -= 1) {
+        survival[k] = tail;
+        tail += last.weights[k - last.left];
+      }
       for (let k = 0; k < terms; k += 1) {
-        if (k >= last.left) tail -= last.weights[k - last.left];
-        const survival = Math.max(0, tail);
-        pfdIntegral += (downSeries[k] * survival) / rate;
-        frequencyIntegral += (flowSeries[k] * survival) / rate;
+        pfdIntegral += (downSeries[k] * survival[k]) / rate;
+        frequencyIntegral += (flowSeries[k] * survival[k]) / rate;
       }
     } else {
       pfdIntegral += downSeries[0] * length;
