@@ -12,6 +12,7 @@ import { healthRouter } from './http/health-router.js';
 import { consoleLogger } from './logger.js';
 import { membersRouter } from './members/members-router.js';
 import { projectsRouter } from './projects/projects-router.js';
+import { reportsRouter } from './reports/reports-router.js';
 import { sifsRouter } from './sifs/sifs-router.js';
 import { modelsRouter } from './models/models-router.js';
 import { solvesRouter, type SolvingDeps } from './solves/solves-router.js';
@@ -85,6 +86,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(sifsRouter(context));
   api.use(modelsRouter(context));
   if (deps.solving) api.use(solvesRouter(context, deps.solving));
+  api.use(reportsRouter(context));
 
   api.use(unknownApiRoute);
   app.use('/api', api);

@@ -35,6 +35,7 @@ export interface SolveQueue {
 /** Polling interval of an idle poller; pg-boss 10 allows 0.5 s at the least. */
 const POLLING_INTERVAL_SECONDS = 0.5;
 
+/** Starts pg-boss on the database (it keeps its tables in the pgboss schema) and makes sure the queue exists. */
 export async function startSolveQueue(options: SolveQueueOptions): Promise<SolveQueue> {
   const boss = new PgBoss({
     connectionString: options.connectionString,

@@ -15,6 +15,7 @@ export interface SolveTask {
   readonly progressPort: MessagePort;
 }
 
+/** Messages from the worker thread to the pool: once `started`, then `progress` at most every 100 ms. */
 export type TaskMessage = { readonly kind: 'started' } | { readonly kind: 'progress'; readonly fraction: number; readonly stage: string };
 
 /**

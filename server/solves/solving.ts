@@ -25,6 +25,7 @@ function positiveNumber(name: string, fallback: number): number {
   return value;
 }
 
+/** Reads SOLVE_TIME_LIMIT_SECONDS, SOLVER_THREADS and PROOFLINE_SOLVER; a wrong value is a ConfigError naming it. */
 export function solvingConfigFromEnv(): SolvingConfig {
   const solver = process.env['PROOFLINE_SOLVER'] ?? 'on';
   if (solver !== 'on' && solver !== 'off') throw new ConfigError(`PROOFLINE_SOLVER must be "on" or "off", not "${solver}"`);

@@ -13,9 +13,10 @@ import type { ModelFile } from '../../shared/model-file.js';
  */
 export type TestFault = { readonly kind: 'throw' } | { readonly kind: 'exit' } | { readonly kind: 'hang' } | { readonly kind: 'slow'; readonly ms: number };
 
-export const TEST_FAULT_PREFIX = 'test-fault:';
-export const TEST_FAULT_EXIT_CODE = 3;
+const TEST_FAULT_PREFIX = 'test-fault:';
+const TEST_FAULT_EXIT_CODE = 3;
 
+/** The fault a model's name asks for, or undefined for an ordinary model. */
 export function testFaultOf(model: ModelFile): TestFault | undefined {
   if (!model.name.startsWith(TEST_FAULT_PREFIX)) return undefined;
   const [kind, argument] = model.name.slice(TEST_FAULT_PREFIX.length).split(':');
