@@ -1,8 +1,10 @@
 import type { Express } from 'express';
-import { sql } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { draftConflictDetails, modelDetail, modelDraft, modelRevisionDetail, modelRevisionList } from '../../shared/api/models.js';
 import { modelFile, type FaultTreeModel } from '../../shared/model-file.js';
+import { projects } from '../../server/db/schema/projects.js';
+import { sifs } from '../../server/db/schema/sifs.js';
 import { createTestApp, signedInAgent } from './helpers/test-app.js';
 import { openTestDatabase, resetDatabase, type TestDatabase } from './helpers/test-database.js';
 import { seedWorld, type World } from './helpers/world.js';
@@ -264,6 +266,22 @@ describe('models: roles', () => {
     expect((await outsider.get(`/api/projects/${world.projectB}/models/${id}`)).status).toBe(404);
     expect((await outsider.get(`/api/projects/${world.projectB}/sifs/${world.sifDraft}/models`)).status).toBe(404);
     expect((await outsider.post(`/api/projects/${world.projectB}/sifs/${world.sifOfB}/models`).send({ file: levelSwitchPair() })).status).toBe(201);
+  });
+
+  it('keeps the models of an archived SIF or project read-only (409) until restored', async () => {
+    const { agent, response } = await createModel();
+    const id = response.body.id as string;
+    await database.db.update(sifs).set({ archived: true }).where(eq(sifs.id, world.sifDraft));
+    const save = await agent.put(`/api/projects/${world.projectA}/models/${id}/draft`).send({ version: 1, content: levelSwitchPair('Late edit') });
+    expect(save.status).toBe(409);
+    expect(save.body.error.message).toContain('archived');
+    expect((await agent.get(`/api/projects/${world.projectA}/models/${id}`)).status).toBe(200);
+    await database.db.update(sifs).set({ archived: false }).where(eq(sifs.id, world.sifDraft));
+    await database.db.update(projects).set({ archived: true }).where(eq(projects.id, world.projectA));
+    const issue = await agent.post(`/api/projects/${world.projectA}/models/${id}/revisions`).send({ draftVersion: 1, reason: 'Late issue' });
+    expect(issue.status).toBe(409);
+    await database.db.update(projects).set({ archived: false }).where(eq(projects.id, world.projectA));
+    expect((await agent.put(`/api/projects/${world.projectA}/models/${id}/draft`).send({ version: 1, content: levelSwitchPair('Late edit') })).status).toBe(200);
   });
 
   it('asks for sign-in and checks ids', async () => {
