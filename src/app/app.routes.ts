@@ -10,6 +10,12 @@ export const routes: Routes = [
     loadComponent: () => import('./auth/sign-in').then((m) => m.SignIn),
   },
   {
+    // The 300-node canvas benchmark (scripts/bench-canvas.ts); synthetic data, no API calls.
+    path: 'canvas-bench',
+    title: 'Canvas benchmark · Proofline',
+    loadComponent: () => import('./canvas/bench/canvas-bench').then((m) => m.CanvasBench),
+  },
+  {
     path: '',
     canActivate: [signedInGuard],
     loadComponent: () => import('./shell/shell').then((m) => m.Shell),
@@ -34,6 +40,21 @@ export const routes: Routes = [
         path: 'projects/:projectId/sifs/:sifId',
         canDeactivate: [unsavedChangesGuard],
         loadComponent: () => import('./register/sif-editor').then((m) => m.SifEditor),
+      },
+      {
+        path: 'projects/:projectId/sifs/:sifId/models',
+        title: 'Models · Proofline',
+        loadComponent: () => import('./models/model-list').then((m) => m.ModelList),
+      },
+      {
+        path: 'projects/:projectId/sifs/:sifId/models/new-from-architecture',
+        title: 'Architecture wizard · Proofline',
+        loadComponent: () => import('./wizard/architecture-wizard').then((m) => m.ArchitectureWizard),
+      },
+      {
+        path: 'projects/:projectId/sifs/:sifId/models/:modelId',
+        title: 'Model · Proofline',
+        loadComponent: () => import('./models/model-editor').then((m) => m.ModelEditor),
       },
       {
         path: 'projects/:projectId/members',

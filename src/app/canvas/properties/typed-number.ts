@@ -1,0 +1,62 @@
+import { FormControl, type AbstractControl, type ValidationErrors, type ValidatorFn } from '@angular/forms';
+import { formatTyped, readTypedNumber } from '../../units/units';
+
+export interface NumberRule {
+  readonly required?: boolean;
+  readonly min?: number;
+  /** The lower bound itself is not allowed (an interval must be above 0). */
+  readonly exclusiveMin?: boolean;
+  readonly max?: number;
+  readonly integer?: boolean;
+}
+
+/** Validates a typed number (scientific notation and a decimal comma allowed) against a rule. */
+export function typedNumber(rule: NumberRule): ValidatorFn {
+  return (control: AbstractControl): ValidationErrors | null => {
+    const value = readTypedNumber(String(control.value ?? ''));
+    if (value === null) return rule.required ? { required: true } : null;
+    if (Number.isNaN(value) || !Number.isFinite(value)) return { notANumber: true };
+    if (rule.integer && !Number.isInteger(value)) return { integer: true };
+    if (rule.min !== undefined && (rule.exclusiveMin ? value <= rule.min : value < rule.min)) return { min: { min: rule.min, exclusive: rule.exclusiveMin ?? false } };
+    if (rule.max !== undefined && value > rule.max) return { max: { max: rule.max } };
+    return null;
+  };
+}
+
+/** A text control for a number, with its rule. */
+export function numberControl(value: number | undefined, rule: NumberRule): FormControl<string> {
+  return new FormControl(value === undefined ? '' : formatTyped(value), { nonNullable: true, validators: typedNumber(rule) });
+}
+
+/** The message shown under a field: what is wrong, in words, naming the field. */
+export function numberMessage(label: string, control: AbstractControl): string {
+  const errors = control.errors;
+  if (!errors) return '';
+  if (errors['required']) return `${label} is required.`;
+  if (errors['notANumber']) return `${label} must be a number, e.g. 2.5e-7.`;
+  if (errors['integer']) return `${label} must be a whole number.`;
+  if (errors['min']) {
+    const { min, exclusive } = errors['min'] as { min: number; exclusive: boolean };
+    return exclusive ? `${label} must be more than ${min}.` : `${label} must be ${min} or more.`;
+  }
+  if (errors['max']) return `${label} must be ${(errors['max'] as { max: number }).max} or less.`;
+  if (errors['pattern']) return `${label}: 1-64 letters, digits, "_", "." or "-", starting with a letter or digit.`;
+  if (errors['taken']) return `${label} "${control.value}" is already used in this model.`;
+  return `${label} is not valid.`;
+}
+
+/** The value of a valid number control (null when empty). */
+export function readControl(control: AbstractControl<string>): number | null {
+  return readTypedNumber(control.value);
+}
+
+/** Model item ids, as shared/model-file.ts allows them. */
+export const ITEM_ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9_.\-]{0,63}$/;
+
+/** Refuses an id another item of the model already has. */
+export function uniqueId(taken: () => ReadonlySet<string>, own: () => string): ValidatorFn {
+  return (control: AbstractControl): ValidationErrors | null => {
+    const value = String(control.value ?? '');
+    return value !== own() && taken().has(value) ? { taken: true } : null;
+  };
+}
