@@ -48,7 +48,17 @@ export async function openTestDatabase(url = testDatabaseUrl()): Promise<TestDat
   return { pool, db, logger, close: () => pool.end() };
 }
 
-/** Empties every table of the foundation (and whatever references them) so each test starts clean. */
+/**
+ * Empties the foundation's tables so each test starts clean. Deleting projects cascades to their members,
+ * SIFs and everything hanging off them (foreign keys with ON DELETE CASCADE); then no row refers to a
+ * user any more. DELETE on these small tables is several times faster than TRUNCATE, which rewrites files.
+ * A new table that refers to users but not through a project must be emptied here before users.
+ */
 export async function resetDatabase(db: Database): Promise<void> {
-  await db.execute(sql`truncate table users, projects, project_members, sifs, sessions restart identity cascade`);
+  await db.transaction(async (tx) => {
+    await tx.execute(sql`delete from sessions`);
+    await tx.execute(sql`delete from projects`);
+    await tx.execute(sql`delete from devices`);
+    await tx.execute(sql`delete from users`);
+  });
 }
