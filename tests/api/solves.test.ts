@@ -356,6 +356,54 @@ describe('solves: stored results', () => {
   });
 });
 
+describe('solves: engines', () => {
+  it('solves a state model exactly', async () => {
+    const engineer = await signedInAgent(app, 'engineer');
+    const missionHours = 10 * PROOF_TEST_HOURS;
+    const response = await engineer.post(`/api/projects/${world.projectA}/sifs/${world.sifDraft}/models`).send({
+      file: {
+        format: 'proofline/model',
+        version: 1,
+        name: 'Untested relay',
+        kind: 'markov',
+        mission: { hours: missionHours, demand: 'low' },
+        states: [{ id: 'OK', initial: 1 }, { id: 'FAILED', down: true }],
+        transitions: [{ from: 'OK', to: 'FAILED', rate: LAMBDA_DU }],
+      },
+    });
+    expect(response.status).toBe(201);
+    const done = await waitFor(engineer, (await startDraftSolve(engineer, response.body.id)).body.id, finished);
+    expect(done, done.error ?? '').toMatchObject({ status: 'succeeded' });
+    // Never tested, never repaired: PFD(t) = 1 - exp(-lambda t), so PFDavg = 1 - (1 - exp(-lambda T)) / (lambda T)
+    // over the mission T (exact closed form of the two-state chain); relative tolerance 1e-4.
+    const lambdaT = LAMBDA_DU * missionHours;
+    const expected = 1 - (1 - Math.exp(-lambdaT)) / lambdaT;
+    expect(done.result!.method).toBe('markov');
+    expect(Math.abs(done.result!.pfdAvg - expected) / expected).toBeLessThan(1e-4);
+  });
+
+  it('runs the Monte Carlo check with its seed as part of the stored key', async () => {
+    const engineer = await signedInAgent(app, 'engineer');
+    const modelId = await createModel(engineer, singleSwitch());
+    const settings = { method: 'montecarlo', samples: 20_000, seed: 7 };
+    const started = await startDraftSolve(engineer, modelId, settings);
+    expect(started.status).toBe(202);
+    expect(started.body.settings).toEqual({ method: 'montecarlo', timePoints: 1000, samples: 20_000, seed: 7 });
+    const done = await waitFor(engineer, started.body.id, finished, 30_000);
+    expect(done, done.error ?? '').toMatchObject({ status: 'succeeded' });
+    const lambdaT = LAMBDA_DU * PROOF_TEST_HOURS;
+    const exact = 1 - (1 - Math.exp(-lambdaT)) / lambdaT;
+    // The simulated PFDavg is a seeded estimate; its own interval must hold the closed form above.
+    const interval = done.result!.interval!.pfdAvg;
+    expect(interval.lower).toBeLessThanOrEqual(exact);
+    expect(interval.upper).toBeGreaterThanOrEqual(exact);
+    expect((await startDraftSolve(engineer, modelId, settings)).status).toBe(200);
+    const otherSeed = await startDraftSolve(engineer, modelId, { ...settings, seed: 8 });
+    expect(otherSeed.status).toBe(202);
+    await waitFor(engineer, otherSeed.body.id, finished, 30_000);
+  });
+});
+
 describe('solves: input and roles', () => {
   it('refuses a stale draft version with the stored draft, and bad settings by name', async () => {
     const engineer = await signedInAgent(app, 'engineer');
