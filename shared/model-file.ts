@@ -41,6 +41,35 @@ export const partialTest = z.strictObject({
 });
 export type PartialTest = z.infer<typeof partialTest>;
 
+/** Fields of a rate event that a device-library link fills in (see deviceLink). */
+export const LINKED_EVENT_FIELDS = ['lambdaDU', 'lambdaDD', 'lambdaS', 'deviceType', 'systematicCapability', 'proofTest.coverage'] as const;
+export type LinkedEventField = (typeof LINKED_EVENT_FIELDS)[number];
+
+/**
+ * A link from a rate event to one version of a device-library record (shared/api/devices.ts): the linked
+ * fields hold that version's values (lambdaS = lambdaSU + lambdaSD), except those listed in `overrides`,
+ * each changed on purpose and with its reason. A newer library version changes nothing until the link is
+ * updated, so a model keeps the figures it used.
+ */
+export const deviceLink = z
+  .strictObject({
+    id: z.uuid({ message: 'must be the id (UUID) of a device-library record' }),
+    version: z.number().int().min(1),
+    overrides: z
+      .array(
+        z.strictObject({
+          field: z.enum(LINKED_EVENT_FIELDS),
+          reason: z.string().trim().min(1, 'an override needs a reason').max(500),
+        }),
+      )
+      .optional(),
+  })
+  .refine((link) => new Set((link.overrides ?? []).map((item) => item.field)).size === (link.overrides ?? []).length, {
+    message: 'a field is overridden twice',
+    path: ['overrides'],
+  });
+export type DeviceLink = z.infer<typeof deviceLink>;
+
 export const rateEvent = z.strictObject({
   id: modelItemId,
   label: z.string().max(200).optional(),
@@ -59,12 +88,18 @@ export const rateEvent = z.strictObject({
   systematicCapability: z.number().int().min(1).max(4).optional(),
   /** Error factor of the failure rates (95th over 50th percentile of a lognormal), for the uncertainty analysis. */
   errorFactor: z.number().finite().min(1).max(100).optional(),
+  /** Where the figures come from (data handbook, certificate, field data), printed in the verification report. */
+  source: z.string().max(500).optional(),
+  /** The device-library version the figures come from, if linked. */
+  device: deviceLink.optional(),
 });
 
 export const probabilityEvent = z.strictObject({
   id: modelItemId,
   label: z.string().max(200).optional(),
   probability: fraction,
+  /** Where the probability comes from, printed in the verification report. */
+  source: z.string().max(500).optional(),
 });
 
 /** A basic event: failure rates with a test plan, or a constant probability on demand. */
@@ -99,6 +134,8 @@ export const commonCauseGroup = z.strictObject({
   model: z.enum(['beta', 'pds']),
   /** PDS method only: C_MooN given explicitly instead of taken from the table. */
   factor: z.number().finite().nonnegative().optional(),
+  /** Where the beta factor comes from (e.g. an IEC 61508-6 Annex D scoring), printed in the verification report. */
+  source: z.string().max(500).optional(),
 });
 export type CommonCauseGroup = z.infer<typeof commonCauseGroup>;
 

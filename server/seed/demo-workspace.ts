@@ -6,6 +6,7 @@ import type { Database } from '../db/client.js';
 import { projectMembers, projects } from '../db/schema/projects.js';
 import { sifs } from '../db/schema/sifs.js';
 import { users } from '../db/schema/users.js';
+import { seedDemoModel } from './demo-model.js';
 import type { SifStatus } from '../../shared/api/sifs.js';
 
 /**
@@ -202,6 +203,7 @@ export async function seedDemoWorkspace(db: Database): Promise<boolean> {
       };
     });
     await tx.insert(sifs).values(rows);
+    await seedDemoModel(tx);
     return true;
   });
 }

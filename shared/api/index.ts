@@ -60,6 +60,12 @@
  * GET    /api/projects/:projectId/solves/:solveId          member/admin  -                 200 solve
  * GET    /api/projects/:projectId/solves/:solveId/events   member/admin  -                 200 text/event-stream (status, progress, done)
  * POST   /api/projects/:projectId/solves/:solveId/cancel   lead/engineer -                 200 solve (finished already: 409 conflict)
+ *
+ * Results of a succeeded solve (results.ts). Members of every role and site admins read; a solve that has
+ * not succeeded is 409 conflict.
+ * GET    /api/projects/:projectId/solves/:solveId/analysis member/admin  -                 200 resultAnalysis
+ * GET    /api/projects/:projectId/solves/:solveId/report   member/admin  -                 200 application/pdf (attachment)
+ * GET    /api/projects/:projectId/solves/:solveId/csv      member/admin  resultCsvQuery    200 text/csv (attachment)
  */
 export * from './errors.js';
 export * from './common.js';
@@ -71,3 +77,4 @@ export * from './sifs.js';
 export * from './permissions.js';
 export * from './models.js';
 export * from './solves.js';
+export * from './results.js';

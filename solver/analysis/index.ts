@@ -4,3 +4,4 @@ export { intervalSweep, referenceInterval, tornado, withProofTestInterval, type 
 export { spuriousTripRate, votedTripRate } from './spurious-trip.js';
 export { subsystemsOf, type Subsystem } from './structure.js';
 export { rateUncertainty, DEFAULT_ERROR_FACTOR, type UncertaintyResult } from './uncertainty.js';
+export { contributionsOf, type Contribution } from './contributions.js';
