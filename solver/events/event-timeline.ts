@@ -74,6 +74,13 @@ function repairedShare(lambda: number, mu: number, s: number): number {
   return (mu * (decayLambda - decayMu)) / (mu - lambda);
 }
 
+function sortedUnique(values: Float64Array): Float64Array {
+  values.sort();
+  let length = 0;
+  for (let i = 0; i < values.length; i++) if (i === 0 || values[i] !== values[length - 1]) values[length++] = values[i];
+  return values.slice(0, length);
+}
+
 /** Compiles an event spec; throws RangeError on rates or times that are not finite and non-negative. */
 export function compileEventTimeline(spec: EventTimelineSpec): EventTimeline {
   const mu = spec.mttrHours > 0 ? 1 / spec.mttrHours : Infinity;
@@ -83,7 +90,7 @@ export function compileEventTimeline(spec: EventTimelineSpec): EventTimeline {
   for (const mode of spec.revealed) {
     if (!(mode.lambda >= 0) || !Number.isFinite(mode.lambda)) throw new RangeError(`rate ${mode.lambda} is not a finite non-negative number`);
     lambdaDU += mode.lambda;
-    const times = [...new Set(mode.revealTimes)].sort((a, b) => a - b);
+    const times = sortedUnique(Float64Array.from(mode.revealTimes));
     const starts = new Float64Array(times.length + 1);
     starts.set(times, 1);
     const notWorking = new Float64Array(starts.length);
@@ -112,7 +119,7 @@ export function compileEventTimeline(spec: EventTimelineSpec): EventTimeline {
     lambdaDU,
     windowStarts,
     windowEnds,
-    breakpoints: new Float64Array([...new Set(breakpoints)].sort((a, b) => a - b)),
+    breakpoints: sortedUnique(Float64Array.from(breakpoints)),
   };
 }
 
@@ -194,9 +201,17 @@ export function evaluateEventTimeline(
       phases[m] = phase;
       const s = t - starts[phase];
       const notWorking = mode.notWorking[phase];
-      let qm = notWorking + (1 - notWorking) * -Math.expm1(-mode.lambda * s);
+      const lambdaTerm = Math.expm1(-mode.lambda * s);
+      let qm = notWorking - (1 - notWorking) * lambdaTerm;
       const repairing = mode.repairing[phase];
-      if (repairing > 0) qm -= repairing * repairedShare(mode.lambda, timeline.mu, s);
+      if (repairing > 0) {
+        // repairedShare() with e^{-lambda s} reused from the expm1 above.
+        const decayLambda = 1 + lambdaTerm;
+        const mu = timeline.mu;
+        const muS = mu * s;
+        const decayMu = muS > NEGLIGIBLE_EXPONENT ? 0 : Math.exp(-muS);
+        qm -= repairing * (Math.abs(mu - mode.lambda) <= 1e-12 * mu ? muS * decayLambda : (mu * (decayLambda - decayMu)) / (mu - mode.lambda));
+      }
       q += qm - q * qm;
     }
     if (timeline.lambdaNeverRevealed > 0) {

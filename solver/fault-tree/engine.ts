@@ -5,6 +5,7 @@ import { curveTimes } from '../common/time-grid.js';
 import { buildTree, type BuiltTree } from './build.js';
 import { minimalCutSets } from './cut-sets.js';
 import { backwardPass, flatten, forwardPass, variableMatrix, type FlatDiagram } from './evaluate.js';
+import type { EventTimeline } from '../events/event-timeline.js';
 import { compileVariables, type TreeVariables } from './variables.js';
 
 /** Target of the summed Kronrod-Gauss error estimate, relative; the stated bound is 1e-6. */
@@ -27,6 +28,26 @@ export interface ItemAverages {
 }
 
 /**
+ * Starting partition of the quadrature: after each breakpoint, a repair (rate 1/MTTR) decays as
+ * e^{-s/MTTR}; splitting at 4 and 16 of the shortest and 40 of the longest MTTR lets the first round of
+ * Gauss-Kronrod resolve it instead of several rounds of bisection.
+ */
+function splitForRepair(edges: Float64Array, rows: readonly EventTimeline[]): Float64Array {
+  const mttrs = rows.filter((row) => row.mu !== Infinity && (row.modes.length > 0 || row.lambdaDD > 0)).map((row) => 1 / row.mu);
+  if (mttrs.length === 0) return edges;
+  const shortest = Math.min(...mttrs);
+  const longest = Math.max(...mttrs);
+  const offsets = [...new Set([4 * shortest, 16 * shortest, 40 * longest])].sort((a, b) => a - b);
+  const points: number[] = [];
+  for (let i = 0; i + 1 < edges.length; i++) {
+    points.push(edges[i]);
+    for (const offset of offsets) if (edges[i] + offset < edges[i + 1] - offset / 4) points.push(edges[i] + offset);
+  }
+  points.push(edges[edges.length - 1]);
+  return Float64Array.from(points);
+}
+
+/**
  * The exact fault-tree engine of one model: the decision diagram built once, then evaluated at batches
  * of time points. Each stage is a method so that the benchmark can time it.
  */
@@ -37,6 +58,8 @@ export class FaultTreeEngine {
   readonly missionHours: number;
   /** 0, every breakpoint of any event inside the mission, and the mission end. */
   readonly edges: Float64Array;
+  /** The edges plus splits a few repair times after each, where a repair transient decays. */
+  readonly quadratureEdges: Float64Array;
   private readonly signal: AbortSignal | undefined;
   private readonly batch: number;
 
@@ -49,13 +72,14 @@ export class FaultTreeEngine {
     this.variables = compileVariables(model);
     throwIfAborted(this.signal);
     this.tree = buildTree(model, this.variables, options.nodeLimit ?? 2_000_000);
-    this.diagram = flatten(this.tree.bdd, this.tree.root, this.tree.variableAt);
+    this.diagram = flatten(this.tree.bdd, this.tree.root, this.tree.variableAt, this.variables.rowOf);
     this.tree.bdd.clearCaches();
     const points = new Set<number>([0, this.missionHours]);
-    for (const item of this.variables.variables) {
-      for (const time of item.timeline.breakpoints) if (time > 0 && time < this.missionHours) points.add(time);
+    for (const timeline of this.variables.rows) {
+      for (const time of timeline.breakpoints) if (time > 0 && time < this.missionHours) points.add(time);
     }
     this.edges = Float64Array.from([...points].sort((a, b) => a - b));
+    this.quadratureEdges = splitForRepair(this.edges, this.variables.rows);
     this.batch = Math.max(8, Math.min(4096, Math.floor((options.scratchDoubles ?? 2 ** 21) / this.diagram.size)));
   }
 
@@ -67,7 +91,7 @@ export class FaultTreeEngine {
     for (let start = 0; start < times.length; start += batch) {
       throwIfAborted(this.signal);
       const slice = times.subarray(start, Math.min(times.length, start + batch));
-      const { q } = variableMatrix(this.variables.variables, slice, false, fromLeft?.subarray(start, start + slice.length));
+      const { q } = variableMatrix(this.variables.rows, slice, false, fromLeft?.subarray(start, start + slice.length));
       out.set(forwardPass(diagram, q, slice.length, values), start);
     }
     return out;
@@ -81,7 +105,7 @@ export class FaultTreeEngine {
 
   /** PFDavg: (1/T) times the adaptive Gauss-Kronrod integral of PFD(t) between breakpoints. */
   pfdAverage(onRound?: (intervals: number) => void): { pfdAvg: number; relativeError: number; partition: Float64Array } {
-    const result = integrateAdaptive(this.edges, (times) => this.topProbability(times), {
+    const result = integrateAdaptive(this.quadratureEdges, (times) => this.topProbability(times), {
       relativeTolerance: QUADRATURE_TOLERANCE,
       signal: this.signal,
       onRound,
@@ -95,7 +119,8 @@ export class FaultTreeEngine {
    * and one backward pass per batch. The top's failure frequency is sum_v B_v(t) w_v(t), the failure
    * frequency of a coherent structure of independent components (Rausand & Hoyland, System Reliability
    * Theory, 2nd ed., chapter on system reliability, from memory).
-   * @param onCutSetBatch called per batch with the variables' q matrix, the batch length and weights.
+   * @param onCutSetBatch called per batch with the q matrix (one row per timeline, see rowOf), the batch
+   *   length and the weights.
    */
   frequencyAndImportance(
     rule: PartitionRule,
@@ -114,17 +139,19 @@ export class FaultTreeEngine {
       throwIfAborted(this.signal);
       const count = Math.min(batch, times.length - start);
       const slice = times.subarray(start, start + count);
-      const { q, w } = variableMatrix(this.variables.variables, slice, true);
+      const { q, w } = variableMatrix(this.variables.rows, slice, true);
       const frequencyMatrix = w as Float64Array;
       forwardPass(this.diagram, q, count, values);
       const birnbaum = new Float64Array(variableCount * count);
       backwardPass(this.diagram, q, count, values, reach, birnbaum);
+      const rowOf = this.variables.rowOf;
       for (let v = 0; v < variableCount; v++) {
-        const row = v * count;
+        const at = v * count;
+        const row = rowOf[v] * count;
         let sumB = 0;
         let sumQB = 0;
         for (let j = 0; j < count; j++) {
-          const b = birnbaum[row + j];
+          const b = birnbaum[at + j];
           if (b === 0) continue;
           const weight = weights[start + j];
           sumB += weight * b;
@@ -148,7 +175,7 @@ export class FaultTreeEngine {
   pfhAdaptive(): { pfh: number; relativeError: number } {
     const size = this.diagram.size;
     const result = integrateAdaptive(
-      this.edges,
+      this.quadratureEdges,
       (times) => {
         const out = new Float64Array(times.length);
         const batch = Math.max(8, Math.floor(this.batch / 2));
@@ -156,11 +183,14 @@ export class FaultTreeEngine {
         const reach = new Float64Array(size * batch);
         for (let start = 0; start < times.length; start += batch) {
           const count = Math.min(batch, times.length - start);
-          const { q, w } = variableMatrix(this.variables.variables, times.subarray(start, start + count), true);
+          const { q, w } = variableMatrix(this.variables.rows, times.subarray(start, start + count), true);
           forwardPass(this.diagram, q, count, values);
           const birnbaum = new Float64Array(this.variables.variables.length * count);
           backwardPass(this.diagram, q, count, values, reach, birnbaum);
-          for (let index = 0; index < birnbaum.length; index++) out[start + (index % count)] += birnbaum[index] * (w as Float64Array)[index];
+          const rowOf = this.variables.rowOf;
+          for (let v = 0; v < rowOf.length; v++) {
+            for (let j = 0; j < count; j++) out[start + j] += birnbaum[v * count + j] * (w as Float64Array)[rowOf[v] * count + j];
+          }
         }
         return out;
       },
@@ -179,13 +209,13 @@ export class FaultTreeEngine {
    * events' q matrix at the partition's times is computed once and shared by every gate).
    */
   averagesWithGatesFixed(gateIds: readonly string[], rule: PartitionRule): { failed: number; working: number }[] {
-    const { q } = variableMatrix(this.variables.variables, rule.times, false);
+    const { q } = variableMatrix(this.variables.rows, rule.times, false);
     const count = rule.times.length;
     return gateIds.map((gateId) => {
       throwIfAborted(this.signal);
       const [failed, working] = [true, false].map((state) => {
         const root = this.tree.topWithGateFixed(gateId, state);
-        const diagram = flatten(this.tree.bdd, root, this.tree.variableAt);
+        const diagram = flatten(this.tree.bdd, root, this.tree.variableAt, this.variables.rowOf);
         const values = new Float64Array(diagram.size * count);
         return rule.integrate(forwardPass(diagram, q, count, values)).integral / this.missionHours;
       });

@@ -48,12 +48,13 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
   const cutSets = engine.cutSets();
   if (cutSets.truncated) warnings.push(`minimal cut sets above order ${Math.max(0, ...cutSets.sets.map((set) => set.length))} are not listed`);
   const cutSetIntegrals = new Float64Array(cutSets.sets.length);
+  const rowOf = engine.variables.rowOf;
   const frequency = engine.frequencyAndImportance(rule, (q, count, weights) => {
     cutSets.sets.forEach((set, index) => {
       let sum = 0;
       for (let j = 0; j < count; j++) {
         let product = weights[j];
-        for (const variable of set) product *= q[variable * count + j];
+        for (const variable of set) product *= q[rowOf[variable] * count + j];
         sum += product;
       }
       cutSetIntegrals[index] += sum;

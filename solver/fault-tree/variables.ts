@@ -12,6 +12,10 @@ export interface TreeVariable {
 
 export interface TreeVariables {
   readonly variables: readonly TreeVariable[];
+  /** The distinct timelines (events with the same rates and test plan share one). */
+  readonly rows: readonly EventTimeline[];
+  /** Index into rows of each variable's timeline. */
+  readonly rowOf: Int32Array;
   /** Variable index of each event's independent part. */
   readonly eventVariable: ReadonlyMap<string, number>;
   /** Variable index of the shared event of the group each event belongs to, if any. */
@@ -121,11 +125,25 @@ export function compileVariables(model: FaultTreeModel): TreeVariables {
   const eventVariable = new Map<string, number>();
   const sharedVariable = new Map<string, number>();
   const plans = new Map<string, EventPlan>();
+  const rows: EventTimeline[] = [];
+  const rowKeys = new Map<string, number>();
+  const rowOf: number[] = [];
+  const compiled = (spec: EventTimelineSpec): EventTimeline => {
+    const key = JSON.stringify(spec);
+    let row = rowKeys.get(key);
+    if (row === undefined) {
+      row = rows.length;
+      rows.push(compileEventTimeline(spec));
+      rowKeys.set(key, row);
+    }
+    rowOf.push(row);
+    return rows[row];
+  };
 
   model.events.forEach((event) => {
     eventVariable.set(event.id, variables.length);
     if (isProbabilityEvent(event)) {
-      variables.push({ id: event.id, kind: 'event', timeline: compileEventTimeline({ probability: event.probability, lambdaDD: 0, mttrHours: 0, revealed: [], lambdaNeverRevealed: 0, downWindows: [] }) });
+      variables.push({ id: event.id, kind: 'event', timeline: compiled({ probability: event.probability, lambdaDD: 0, mttrHours: 0, revealed: [], lambdaNeverRevealed: 0, downWindows: [] }) });
       return;
     }
     const plan = eventPlan(event, missionHours);
@@ -133,7 +151,7 @@ export function compileVariables(model: FaultTreeModel): TreeVariables {
     const membership = groupOf.get(event.id);
     const beta = membership?.group.beta ?? 0;
     const betaD = membership ? (membership.group.betaD ?? membership.group.beta) : 0;
-    variables.push({ id: event.id, kind: 'event', timeline: compileEventTimeline(timelineSpec(plan, 1 - beta, 1 - betaD, true)) });
+    variables.push({ id: event.id, kind: 'event', timeline: compiled(timelineSpec(plan, 1 - beta, 1 - betaD, true)) });
   });
 
   (model.ccf ?? []).forEach((group, index) => {
@@ -181,9 +199,9 @@ export function compileVariables(model: FaultTreeModel): TreeVariables {
       downWindows: [],
     };
     const variableIndex = variables.length;
-    variables.push({ id: group.id, kind: 'ccf', timeline: compileEventTimeline(timelineSpec(shared, 1, 1, false)) });
+    variables.push({ id: group.id, kind: 'ccf', timeline: compiled(timelineSpec(shared, 1, 1, false)) });
     for (const member of group.members) sharedVariable.set(member, variableIndex);
   });
   if (issues.length > 0) throw new ModelError(issues);
-  return { variables, eventVariable, sharedVariable, warnings };
+  return { variables, rows, rowOf: Int32Array.from(rowOf), eventVariable, sharedVariable, warnings };
 }
