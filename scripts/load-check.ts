@@ -144,7 +144,10 @@ async function main(): Promise<void> {
 
   const loadBefore = loadavg()[0]!;
   await runReads();
+  const cpuBefore = process.cpuUsage();
   const idle = await runReads();
+  const cpu = process.cpuUsage(cpuBefore);
+  const cpuPerReadMs = (cpu.user + cpu.system) / 1000 / READS;
 
   const solvesStarted = performance.now();
   const queued = await Promise.all(
@@ -167,7 +170,7 @@ async function main(): Promise<void> {
   console.log(`Load check: API + 1 solver process (${config.threads} worker thread(s)), solver ${SOLVER_VERSION}, Node ${process.version}`);
   console.log(`Machine: ${availableParallelism()} cores; 1-minute load average ${loadBefore.toFixed(1)} at the start, ${loadavg()[0]!.toFixed(1)} at the end (other work on the machine skews the figures)`);
   console.log(`Model: ${GROUPS * 3} events, ${GROUPS + 1} gates, ${GROUPS} common-cause groups; ${SOLVES} variants (no stored result reused)`);
-  console.log(`Reads without solves: ${describe(idle)}`);
+  console.log(`Reads without solves: ${describe(idle)}; API process CPU ${cpuPerReadMs.toFixed(2)} ms per read`);
   console.log(`Reads during solves:  ${describe(busy)}`);
   console.log(`  ${SOLVES} solves queued in ${queueMs.toFixed(0)} ms; reads done after ${readsDoneMs.toFixed(0)} ms with ${unfinishedAfterReads} solves still queued or running`);
   console.log(`  all solves finished after ${allSolvedMs.toFixed(0)} ms: ${finished.filter((solve) => solve.status === 'succeeded').length} succeeded; run time per solve p50 ${percentile(runTimes, 0.5)} ms, max ${runTimes.at(-1)} ms`);
