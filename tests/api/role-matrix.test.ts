@@ -20,8 +20,10 @@ interface RouteCase {
   readonly method: 'get' | 'post' | 'patch' | 'put' | 'delete';
   readonly path: (world: World) => string;
   readonly body?: (world: World, caller: WorldUsername) => object;
-  /** Status for each signed-in caller; anonymous always expects 401. */
+  /** Status for each signed-in caller. */
   readonly expected: Record<WorldUsername, number>;
+  /** Status without a session; 401 unless stated. */
+  readonly anonymous?: number;
   /** Reads the state the route changes: it must differ after an allowed call and not after a refused one. */
   readonly probe?: (database: TestDatabase, world: World) => Promise<unknown>;
 }
@@ -42,6 +44,16 @@ const readersOfA: WorldUsername[] = ['admin', 'lead', 'engineer', 'reviewer', 'v
 const sifOf = async ({ db }: TestDatabase, id: string) => (await db.select().from(sifs).where(eq(sifs.id, id)))[0];
 
 const ROUTES: readonly RouteCase[] = [
+  { name: 'GET /api/health', method: 'get', path: () => '/api/health', expected: everyone(200), anonymous: 200 },
+  {
+    name: 'POST /api/auth/sign-in',
+    method: 'post',
+    path: () => '/api/auth/sign-in',
+    body: (_world, caller) => ({ username: caller, password: passwordOf(caller) }),
+    expected: everyone(200),
+    anonymous: 200,
+  },
+  { name: 'POST /api/auth/sign-out', method: 'post', path: () => '/api/auth/sign-out', expected: everyone(204), anonymous: 204 },
   { name: 'GET /api/auth/me', method: 'get', path: () => '/api/auth/me', expected: everyone(200) },
   {
     name: 'POST /api/auth/password',
@@ -186,7 +198,7 @@ describe.each(ROUTES)('$name', (route) => {
     let call = client[route.method](route.path(world));
     if (route.body) call = call.send(route.body(world, caller === 'anonymous' ? 'viewer' : caller));
     const response = await call;
-    const expected = caller === 'anonymous' ? 401 : route.expected[caller];
+    const expected = caller === 'anonymous' ? (route.anonymous ?? 401) : route.expected[caller];
     expect(response.status, JSON.stringify(response.body)).toBe(expected);
     if (expected >= 400) {
       expect(response.body.error.code).toBe({ 401: 'unauthenticated', 403: 'forbidden', 404: 'not_found' }[expected]);
