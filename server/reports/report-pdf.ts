@@ -30,6 +30,7 @@ const LISTED_ROWS = 25;
 function number(value: number | null | undefined, digits = 3): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '-';
   if (value === 0) return '0';
+  if (value >= Number.MAX_VALUE / 2) return '∞';
   const magnitude = Math.abs(value);
   return magnitude >= 1e-2 && magnitude < 1e5 ? String(Number(value.toPrecision(digits))) : value.toExponential(digits - 1);
 }
