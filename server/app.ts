@@ -14,6 +14,7 @@ import { membersRouter } from './members/members-router.js';
 import { projectsRouter } from './projects/projects-router.js';
 import { reportsRouter } from './reports/reports-router.js';
 import { sifsRouter } from './sifs/sifs-router.js';
+import { devicesRouter } from './devices/devices-router.js';
 import { modelsRouter } from './models/models-router.js';
 import { solvesRouter, type SolvingDeps } from './solves/solves-router.js';
 import { usersRouter } from './users/users-router.js';
@@ -85,6 +86,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(membersRouter(context));
   api.use(sifsRouter(context));
   api.use(modelsRouter(context));
+  api.use(devicesRouter(context));
   if (deps.solving) api.use(solvesRouter(context, deps.solving));
   api.use(reportsRouter(context));
 

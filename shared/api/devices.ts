@@ -199,8 +199,8 @@ export const importRateUnit = z.enum(IMPORT_RATE_UNITS, { message: 'must be perH
 export type ImportRateUnit = z.infer<typeof importRateUnit>;
 export const PER_HOUR_FACTOR: Record<ImportRateUnit, number> = { perHour: 1, fit: 1e-9, perYear: 1 / 8760 };
 
-/** Largest CSV accepted: 2 MB of text, 5000 rows. */
-export const MAX_IMPORT_CSV_CHARS = 2_000_000;
+/** Largest CSV accepted: 900 000 characters (the API takes JSON bodies up to 1 MB), 5000 rows. */
+export const MAX_IMPORT_CSV_CHARS = 900_000;
 export const MAX_IMPORT_ROWS = 5000;
 
 /**

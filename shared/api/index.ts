@@ -66,6 +66,22 @@
  * GET    /api/projects/:projectId/solves/:solveId/analysis member/admin  -                 200 resultAnalysis
  * GET    /api/projects/:projectId/solves/:solveId/report   member/admin  -                 200 application/pdf (attachment)
  * GET    /api/projects/:projectId/solves/:solveId/csv      member/admin  resultCsvQuery    200 text/csv (attachment)
+ *
+ * Device library (devices.ts): site-wide, shared by every project. "reader" = site admin or member of any
+ * project (others get 404); "editor" = site admin or lead/engineer of any active project (others 403).
+ * GET    /api/devices/access                    signed in    -                      200 deviceLibraryAccess
+ * GET    /api/devices                           reader       deviceListQuery        200 deviceList (current versions)
+ * POST   /api/devices                           editor       createDeviceBody       201 deviceDetail (version 1; same maker+model: 409 already_exists)
+ * GET    /api/devices/export                    reader       -                      200 text/csv (attachment; formula cells escaped)
+ * POST   /api/devices/import/preview            editor       importPreviewBody      200 importPreview (writes nothing)
+ * POST   /api/devices/import/confirm            editor       importConfirmBody      200 importResult (invalid rows: 400 unless skipInvalidRows)
+ * GET    /api/devices/:deviceId                 reader       -                      200 deviceDetail
+ * PUT    /api/devices/:deviceId                 editor       updateDeviceBody       200 deviceDetail (new version; stale: 409 version_conflict)
+ * GET    /api/devices/:deviceId/versions        reader       -                      200 deviceVersionList (newest first)
+ * GET    /api/devices/:deviceId/versions/:version  reader    -                      200 deviceVersion
+ * POST   /api/devices/:deviceId/evidence        editor       multipart file (+description)  201 deviceDetail (PDF/PNG/JPEG by content, 10 MB: 413)
+ * GET    /api/devices/:deviceId/evidence/:evidenceId  reader -                      200 the file (attachment, nosniff)
+ * DELETE /api/devices/:deviceId/evidence/:evidenceId  editor -                      204
  */
 export * from './errors.js';
 export * from './common.js';
@@ -78,3 +94,4 @@ export * from './permissions.js';
 export * from './models.js';
 export * from './solves.js';
 export * from './results.js';
+export * from './devices.js';
