@@ -31,6 +31,7 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
   let current = new Float64Array(n);
   let next = new Float64Array(n);
   const segmentEnd = new Float64Array(n);
+  const sums = new Float64Array(2);
   let pfdIntegral = 0;
   let frequencyIntegral = 0;
   let errorBound = 0;
@@ -68,9 +69,9 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
     if (states) for (let state = 0; state < n; state += 1) states[state][point] = distribution[state];
 
     let steadyFrom = terms;
+    downSeries[0] = dot(current, chain.down);
+    flowSeries[0] = dot(current, chain.downFlowRate);
     for (let k = 0; k < terms; k += 1) {
-      downSeries[k] = dot(current, chain.down);
-      flowSeries[k] = dot(current, chain.downFlowRate);
       if (k >= last.left) axpy(last.weights[k - last.left], current, segmentEnd);
       if (pointStates) {
         windows.forEach((window, index) => {
@@ -78,7 +79,9 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
         });
       }
       if (k + 1 === terms) break;
-      multiplyUniformized(chain, diagonal, scaledIn, current, next);
+      multiplyUniformized(chain, diagonal, scaledIn, current, next, sums);
+      downSeries[k + 1] = sums[0];
+      flowSeries[k + 1] = sums[1];
       products += 1;
       if ((k & 15) === 15 && l1Distance(current, next) < STEADY_STATE_TOLERANCE) {
         steadyFrom = k + 1;
@@ -91,9 +94,9 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
 
     if (steadyFrom < terms) {
       steadyStates += 1;
-      const downSteady = dot(current, chain.down);
-      const flowSteady = dot(current, chain.downFlowRate);
-      for (let k = steadyFrom; k < terms; k += 1) {
+      const downSteady = downSeries[steadyFrom];
+      const flowSteady = flowSeries[steadyFrom];
+      for (let k = steadyFrom + 1; k < terms; k += 1) {
         downSeries[k] = downSteady;
         flowSeries[k] = flowSteady;
       }
@@ -156,21 +159,29 @@ function uniformizationRate(chain: ChainSolveContext['chain']): number {
   return largest * 1.02;
 }
 
+/** output = input (I + Q / Lambda); sums receives output . down and output . downFlowRate. */
 function multiplyUniformized(
   chain: ChainSolveContext['chain'],
   diagonal: Float64Array,
   scaledIn: Float64Array,
   input: Float64Array,
   output: Float64Array,
+  sums: Float64Array,
 ): void {
-  const { inStart, inSource } = chain;
+  const { inStart, inSource, down, downFlowRate } = chain;
   const n = chain.size;
+  let downSum = 0;
+  let flowSum = 0;
   for (let target = 0; target < n; target += 1) {
     let sum = input[target] * diagonal[target];
     const end = inStart[target + 1];
     for (let slot = inStart[target]; slot < end; slot += 1) sum += input[inSource[slot]] * scaledIn[slot];
     output[target] = sum;
+    downSum += sum * down[target];
+    flowSum += sum * downFlowRate[target];
   }
+  sums[0] = downSum;
+  sums[1] = flowSum;
 }
 
 function axpy(weight: number, vector: Float64Array, into: Float64Array): void {
