@@ -2,7 +2,6 @@ import type { z } from 'zod';
 import { modelFile, type ModelFile } from '../shared/model-file.js';
 import type { SolveResult } from '../shared/solve-result.js';
 import { ModelError, SolverUnavailableError, type ModelIssue } from './common/model-error.js';
-import { BddNodeLimitError } from './fault-tree/bdd.js';
 import { solveFaultTree } from './fault-tree/solve-fault-tree.js';
 import { solveMarkovModel } from './markov/index.js';
 import { simulateFaultTreeModel } from './montecarlo/index.js';
@@ -13,9 +12,6 @@ export type { SolveOptions } from './solve-options.js';
 
 /** Version of the numerical engines, stored with every result. */
 export const SOLVER_VERSION = '1.0.0';
-
-/** Largest decision diagram the exact fault-tree engine builds. */
-export const DIAGRAM_NODE_LIMIT = 2_000_000;
 
 /**
  * Zod issues as path + message. A failed union (an event that is neither a rate event nor a probability
@@ -50,12 +46,5 @@ export function solveModel(model: ModelFile, options: SolveOptions = {}): SolveR
     return simulateFaultTreeModel(checked, { ...options, solverVersion: SOLVER_VERSION });
   }
   if (checked.kind === 'markov') return solveMarkovModel(checked, { ...options, solverVersion: SOLVER_VERSION });
-  try {
-    return solveFaultTree(checked, { ...options, nodeLimit: DIAGRAM_NODE_LIMIT }, SOLVER_VERSION);
-  } catch (error) {
-    if (error instanceof BddNodeLimitError) {
-      throw new ModelError([{ path: ['gates'], message: `the fault tree is too large for the exact engine: its decision diagram needs more than ${error.limit.toLocaleString('en-US')} nodes` }]);
-    }
-    throw error;
-  }
+  return solveFaultTree(checked, options, SOLVER_VERSION);
 }

@@ -14,6 +14,8 @@ export const STATED_ERROR_BOUND = 1e-6;
 
 export interface EngineOptions {
   readonly signal?: AbortSignal;
+  /** The model's compiled variables, when the caller has them already. */
+  readonly variables?: TreeVariables;
   /** Node budget of the decision diagram. Default 2,000,000. */
   readonly nodeLimit?: number;
   /** Doubles of scratch per batch of time points (sets the batch length). Default 2^21. */
@@ -69,7 +71,7 @@ export class FaultTreeEngine {
   ) {
     this.signal = options.signal;
     this.missionHours = model.mission.hours;
-    this.variables = compileVariables(model);
+    this.variables = options.variables ?? compileVariables(model);
     throwIfAborted(this.signal);
     this.tree = buildTree(model, this.variables, options.nodeLimit ?? 2_000_000);
     this.diagram = flatten(this.tree.bdd, this.tree.root, this.tree.variableAt, this.variables.rowOf);
@@ -81,6 +83,14 @@ export class FaultTreeEngine {
     this.edges = Float64Array.from([...points].sort((a, b) => a - b));
     this.quadratureEdges = splitForRepair(this.edges, this.variables.rows);
     this.batch = Math.max(8, Math.min(4096, Math.floor((options.scratchDoubles ?? 2 ** 21) / this.diagram.size)));
+  }
+
+  /**
+   * Node evaluations a full solve needs, about: the curve, then the quadrature (15 times per interval,
+   * a forward pass for PFDavg and a forward and a backward pass for PFH).
+   */
+  expectedWork(timePoints: number): number {
+    return this.diagram.size * (timePoints + 2 * this.edges.length + 15 * this.quadratureEdges.length * 4);
   }
 
   /** P(top) at each time (the left limit where fromLeft[j] is 1), in batches. */

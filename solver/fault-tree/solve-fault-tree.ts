@@ -5,18 +5,26 @@ import { throwIfAborted } from '../common/abort.js';
 import { kronrodOnPartition } from '../common/quadrature.js';
 import type { SolveOptions } from '../solve-options.js';
 import { simplifiedValues } from '../formulas/match.js';
+import { BddNodeLimitError } from './bdd.js';
 import { FaultTreeEngine, STATED_ERROR_BOUND } from './engine.js';
+import { MAX_LISTED_CUT_SETS, solveByCutSets } from './solve-by-cut-sets.js';
+import { compileVariables } from './variables.js';
 
-/** Cut sets listed in a result, the most probable first. */
-export const MAX_LISTED_CUT_SETS = 1000;
 /** Gate importance is computed while gates x diagram nodes x quadrature times stays under this. */
 export const GATE_IMPORTANCE_BUDGET = 4e8;
 /** ...and while the events' q matrix at the quadrature times fits in this many doubles. */
 export const GATE_IMPORTANCE_MATRIX_LIMIT = 2 ** 23;
 
+/** Largest decision diagram built; beyond it the cut-set answer with bounds is given instead. */
+export const DIAGRAM_NODE_LIMIT = 500_000;
+/** Node evaluations allowed for the exact answer (a few seconds); beyond, the cut-set answer. */
+export const DIAGRAM_WORK_LIMIT = 1e9;
+
 export interface FaultTreeSolveOptions extends SolveOptions {
-  /** Node budget of the decision diagram (see FaultTreeEngine). */
+  /** Node budget of the decision diagram. Default DIAGRAM_NODE_LIMIT. */
   readonly nodeLimit?: number;
+  /** Budget of node evaluations. Default DIAGRAM_WORK_LIMIT. */
+  readonly workLimit?: number;
 }
 
 /**
@@ -28,12 +36,24 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
   const progress = options.onProgress ?? (() => undefined);
   const signal = options.signal;
   progress(0, 'building the decision diagram');
-  const engine = new FaultTreeEngine(model, { signal, nodeLimit: options.nodeLimit });
+  const compiled = compileVariables(model);
+  let engine: FaultTreeEngine;
+  try {
+    engine = new FaultTreeEngine(model, { signal, nodeLimit: options.nodeLimit ?? DIAGRAM_NODE_LIMIT, variables: compiled });
+  } catch (error) {
+    if (!(error instanceof BddNodeLimitError)) throw error;
+    return solveByCutSets(model, compiled, options, solverVersion, `the decision diagram needs more than ${error.limit.toLocaleString('en-US')} nodes`);
+  }
+  const timePoints = options.timePoints ?? 1000;
+  const work = engine.expectedWork(timePoints);
+  if (work > (options.workLimit ?? DIAGRAM_WORK_LIMIT)) {
+    return solveByCutSets(model, compiled, options, solverVersion, `the decision diagram has ${engine.diagram.size.toLocaleString('en-US')} nodes, about ${work.toExponential(1)} node evaluations`);
+  }
   const warnings = [...engine.variables.warnings];
   throwIfAborted(signal);
 
   progress(0.15, 'computing PFD(t)');
-  const curve = engine.curve(options.timePoints ?? 1000);
+  const curve = engine.curve(timePoints);
   let pfdMax = 0;
   for (const value of curve.pfd) pfdMax = Math.max(pfdMax, value);
 
