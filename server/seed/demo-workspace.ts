@@ -7,6 +7,7 @@ import { projectMembers, projects } from '../db/schema/projects.js';
 import { sifs } from '../db/schema/sifs.js';
 import { users } from '../db/schema/users.js';
 import { seedDemoModel } from './demo-model.js';
+import { seedDemoDevices } from './demo-devices.js';
 import type { SifStatus } from '../../shared/api/sifs.js';
 
 /**
@@ -204,6 +205,7 @@ export async function seedDemoWorkspace(db: Database): Promise<boolean> {
     });
     await tx.insert(sifs).values(rows);
     await seedDemoModel(tx);
+    await seedDemoDevices(tx, idOf('engineer'));
     return true;
   });
 }
