@@ -12,7 +12,7 @@ import { seedWorld } from './helpers/world.js';
 // gone and work again afterwards, with the same sessions.
 
 /** Calls `attempt` until it answers 200 (at most `seconds`); returns every status seen on the way. */
-async function untilOk(attempt: () => Promise<request.Response>, seconds = 10): Promise<number[]> {
+async function untilOk(attempt: () => Promise<request.Response>, seconds = 30): Promise<number[]> {
   const seen: number[] = [];
   const deadline = Date.now() + seconds * 1000;
   while (Date.now() < deadline) {
