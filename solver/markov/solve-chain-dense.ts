@@ -193,3 +193,13 @@ export function denseCostEstimate(context: Pick<ChainSolveContext, 'chain' | 'sc
   for (const segment of schedule.segments) flops += 2 * n ** 2 + (segment.steps + 1) * 4 * n + (keepStates ? segment.steps * 2 * n ** 2 : 0);
   return flops * 0.7;
 }
+
+/** Values the dense method holds at once: the augmented exponential's work matrices and, per shape, the per-step vectors. */
+export function denseMemoryEstimate(context: Pick<ChainSolveContext, 'chain' | 'schedule'>): number {
+  const { chain, schedule } = context;
+  const shapes = new Map<string, number>();
+  for (const segment of schedule.segments) shapes.set(shapeKey((segment.end - segment.start) / segment.steps, segment.steps), segment.steps);
+  let values = 12 * (chain.size + 2) ** 2;
+  for (const steps of shapes.values()) values += (2 * (steps + 1) + 4) * chain.size + 2 * chain.size ** 2;
+  return values;
+}

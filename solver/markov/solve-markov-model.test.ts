@@ -254,6 +254,16 @@ describe('Markov engine: bad input and cancellation', () => {
     expect(performance.now() - started).toBeLessThan(5000);
   });
 
+  it('refuses a chain it estimates at over 10 minutes instead of hanging, naming the size and the remedy', () => {
+    // 200,000 states in a ring with rate 10 per hour over 10 years: about 1e11 sparse operations.
+    const size = 200_000;
+    const states = Array.from({ length: size }, (_, index) => ({ id: `S${index}`, ...(index === 0 ? { initial: 1 } : {}), ...(index % 2 ? { down: true } : {}) }));
+    const transitions = states.map((state, index) => ({ from: state.id, to: states[(index + 1) % size].id, rate: 10 }));
+    const started = performance.now();
+    expect(issuesOf(model({ states, transitions }))).toMatch(/states: chain \(200000 states\) would take about \d+ minutes to solve \(limit 10 minutes\)/);
+    expect(performance.now() - started).toBeLessThan(20_000);
+  });
+
   it('checks the schema the same way (the zod model rejects what the engine rejects)', () => {
     expect(markovModel.safeParse(bad((value) => (value.transitions[1].rate = -1))).success).toBe(false);
     expect(markovModel.safeParse(repairable()).success).toBe(true);

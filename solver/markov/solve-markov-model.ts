@@ -2,11 +2,12 @@ import type { MarkovModel } from '../../shared/model-file.js';
 import { silReached } from '../../shared/sil.js';
 import type { SolveResult } from '../../shared/solve-result.js';
 import { throwIfAborted } from '../common/abort.js';
+import { ModelError } from '../common/model-error.js';
 import type { SolveOptions } from '../solve-options.js';
 import type { ChainSolution } from './chain-solution.js';
 import { compileMarkovModel, type CompiledChain } from './compile-chain.js';
 import { buildSchedule, scheduleHours, type Schedule } from './schedule.js';
-import { denseCostEstimate, solveChainDense } from './solve-chain-dense.js';
+import { denseCostEstimate, denseMemoryEstimate, solveChainDense } from './solve-chain-dense.js';
 import { solveChainUniformization, uniformizationCostEstimate } from './solve-chain-uniformization.js';
 
 /** Version stamp of this engine, used when the caller does not pass one. */
@@ -14,6 +15,11 @@ export const MARKOV_ENGINE_VERSION = '1.0.0';
 
 /** States' probabilities are returned while states x curve points stays at or below this. */
 export const MAX_STATE_VALUES = 2_000_000;
+
+/** A solve whose chosen method is estimated above this (ns; 10 minutes) is refused instead of hanging. */
+export const MAX_ESTIMATED_NANOSECONDS = 6e11;
+/** The dense method is only chosen while its matrices and per-step vectors hold at most this many values. */
+export const MAX_DENSE_VALUES = 3e7;
 
 /** Options of the Markov engine on top of the shared ones. */
 export interface MarkovSolveOptions extends SolveOptions {
@@ -73,9 +79,18 @@ export function solveMarkovModel(model: MarkovModel, options: MarkovSolveOptions
       signal: options.signal,
       progress: (fraction: number) => progress((chainIndex + fraction) / chains.length * 0.95, `solving ${chainLabel(chain, combined)}`),
     };
-    const denseCost = denseCostEstimate(context);
+    const denseCost = denseMemoryEstimate(context) <= MAX_DENSE_VALUES ? denseCostEstimate(context) : Infinity;
     const sparseCost = uniformizationCostEstimate(context);
     const method = options.chainMethod ?? (denseCost <= sparseCost ? 'dense' : 'uniformization');
+    const estimate = method === 'dense' ? denseCost : sparseCost;
+    if (!options.chainMethod && estimate > MAX_ESTIMATED_NANOSECONDS) {
+      throw new ModelError([
+        {
+          path: chainIndex === 0 ? ['states'] : ['parts', chainIndex - 1],
+          message: `${chainLabel(chain, combined)} (${chain.size} states) would take about ${Math.round(estimate / 6e10)} minutes to solve (limit ${MAX_ESTIMATED_NANOSECONDS / 6e10} minutes): it is too large or too stiff over this mission; split it into independent parts, lower the number of states or shorten the mission`,
+        },
+      ]);
+    }
     const solution = method === 'dense' ? solveChainDense(context) : solveChainUniformization(context);
     solutions.push(solution);
     const reason = options.chainMethod
