@@ -7,7 +7,7 @@ import { requireUser } from '../auth/session-user.js';
 import { parseInput } from '../http/validate.js';
 import { ProjectsService } from './projects-service.js';
 
-export const projectParams = z.object({ projectId: recordId });
+const projectParams = z.object({ projectId: recordId });
 
 export function projectsRouter({ db }: AppContext): Router {
   const router = Router();

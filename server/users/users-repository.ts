@@ -52,9 +52,4 @@ export class UsersRepository {
       .where(and(eq(users.isAdmin, true), eq(users.disabled, false)));
     return row.value;
   }
-
-  async countAll(): Promise<number> {
-    const [row] = await this.db.select({ value: count() }).from(users);
-    return row.value;
-  }
 }
