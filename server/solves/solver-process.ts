@@ -1,6 +1,6 @@
 import { randomBytes } from 'node:crypto';
 import { hostname } from 'node:os';
-import { and, eq, inArray, lt, sql } from 'drizzle-orm';
+import { and, eq, inArray, lt, notInArray, sql } from 'drizzle-orm';
 import type pg from 'pg';
 import type { Database } from '../db/client.js';
 import type { ModelFile } from '../../shared/model-file.js';
@@ -177,7 +177,9 @@ export async function startSolverProcess(options: SolverProcessOptions): Promise
       .catch((error: unknown) => log('could not write the solve heartbeat', error));
   }, heartbeatMs);
 
+  // Solves this process is running are never stale to it, however late a heartbeat write is.
   const sweepStale = async () => {
+    const own = [...running.keys()];
     const stale = await db
       .update(solves)
       .set({
@@ -185,7 +187,13 @@ export async function startSolverProcess(options: SolverProcessOptions): Promise
         finishedAt: new Date(),
         error: 'the solver process running this solve stopped (no heartbeat); start the solve again',
       })
-      .where(and(eq(solves.status, 'running'), lt(solves.heartbeatAt, sql`now() - make_interval(secs => ${staleAfterMs / 1000})`)))
+      .where(
+        and(
+          eq(solves.status, 'running'),
+          lt(solves.heartbeatAt, sql`now() - make_interval(secs => ${staleAfterMs / 1000})`),
+          own.length > 0 ? notInArray(solves.id, own) : undefined,
+        ),
+      )
       .returning({ id: solves.id });
     for (const { id } of stale) await publish({ kind: 'status', solveId: id, status: 'failed' });
   };

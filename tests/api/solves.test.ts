@@ -57,8 +57,8 @@ beforeAll(async () => {
     timeLimitMs: TIME_LIMIT_MS,
     solverThreads: 1,
     allowTestFaults: true,
-    heartbeatMs: 200,
-    staleAfterMs: 1000,
+    heartbeatMs: 500,
+    staleAfterMs: 5000,
   });
   app = createTestApp(database, { solving: solving.deps });
 });
@@ -160,8 +160,8 @@ describe('solves: running', () => {
       threads: 1,
       timeLimitMs: TIME_LIMIT_MS,
       allowTestFaults: true,
-      heartbeatMs: 200,
-      staleAfterMs: 1000,
+      heartbeatMs: 500,
+      staleAfterMs: 5000,
       log: (message, error) => database.logger.error(message, error),
     });
     try {
@@ -297,7 +297,7 @@ describe('solves: cancel, time limit, crashes', () => {
         workerName: 'a-machine-that-died:1',
       })
       .returning();
-    const failed = await waitFor(engineer, orphan!.id, finished, 5000);
+    const failed = await waitFor(engineer, orphan!.id, finished, 15_000);
     expect(failed.status).toBe('failed');
     expect(failed.error).toContain('no heartbeat');
   });
