@@ -1,3 +1,4 @@
+import { availableParallelism, loadavg } from 'node:os';
 import { expm as mathjsExpm, matrix } from 'mathjs';
 import type { Architecture } from '../../shared/architecture.js';
 import type { FaultTreeModel, MarkovModel, MarkovTransition } from '../../shared/model-file.js';
@@ -13,6 +14,7 @@ import { createRandomStream } from '../random/index.js';
  * under 2 s; a 100,000-state sparse chain (about 3e5 entries, qT about 1,750 per year, 40 phases, 1,000
  * points) under 2.5 s and 64 MB; at 256 states PFD(t) at 1,000 points 150x faster than mathjs expm and
  * 20x faster than a dense exponential; Monte Carlo samples per second and the interval width after 10 s.
+ * BENCH_ONLY=groups|crew|dense|sparse|montecarlo runs one case (the crew and sparse cases take minutes).
  */
 const YEAR = 8760;
 const MISSION = 10 * YEAR;
@@ -172,7 +174,7 @@ function monteCarlo(): void {
   console.log(`  after ${elapsed.toFixed(1)} s (${samples.toLocaleString('en-US')} missions): PFDavg ${result.pfdAvg.toExponential(3)}, 99 % interval width ${(((pfd.upper - pfd.lower) / result.pfdAvg) * 100).toFixed(1)} % of the value; PFH ${result.pfh.toExponential(3)}, width ${(((pfh.upper - pfh.lower) / result.pfh) * 100).toFixed(1)} %`);
 }
 
-console.log(`Markov engine and Monte Carlo benchmark (node ${process.version})`);
+console.log(`Markov engine and Monte Carlo benchmark (node ${process.version}, load average ${loadavg().map((value) => value.toFixed(1)).join(' ')} on ${availableParallelism()} cores)`);
 if (!process.env.BENCH_ONLY || process.env.BENCH_ONLY === "groups") independentGroups();
 if (!process.env.BENCH_ONLY || process.env.BENCH_ONLY === "crew") dependentChain();
 if (!process.env.BENCH_ONLY || process.env.BENCH_ONLY === "dense") versusDense();

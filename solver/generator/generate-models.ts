@@ -87,8 +87,10 @@ type GroupState = number[];
  * independent part; with one, the groups form one chain and one crew repairs one item at a time (the
  * first in group and channel order, shared events last).
  *
- * One modelling difference remains, second order in the rates: a channel under repair does not fail
- * again until repaired, while the fault tree treats its DU and DD modes as independent.
+ * Detected failures (DD, and the safe detected faults that take a 1oo2D channel out) are marked
+ * `detected`, so PFH counts undetected failures only, as the fault-tree engine does. One modelling
+ * difference remains, second order in the rates: a channel under repair does not fail again until
+ * repaired, while the fault tree treats its DU and DD modes as independent.
  *
  * @throws ModelError naming the field when the architecture is invalid or the chain is too large.
  */
