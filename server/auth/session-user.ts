@@ -6,10 +6,8 @@ import { apiErrors } from '../errors.js';
 export type SessionUser = User;
 
 declare global {
-  // eslint-disable-next-line @typescript-eslint/no-namespace
   namespace Express {
     // Passport's req.user is declared as Express.User; ours carries the account fields.
-    // eslint-disable-next-line @typescript-eslint/no-empty-object-type
     interface User extends SessionUser {}
   }
 }

@@ -1,15 +1,13 @@
-import type { CreateUserBody, User } from '../../shared/api/users.js';
-import type { updateUserBody } from '../../shared/api/users.js';
 import type { z } from 'zod';
+import type { User, createUserBody, updateUserBody } from '../../shared/api/users.js';
 import { hashPassword } from '../auth/passwords.js';
 import type { SessionUser } from '../auth/session-user.js';
 import { SessionsRepository } from '../auth/sessions-repository.js';
-import type { Database } from '../db/client.js';
-import { uniqueViolation } from '../db/client.js';
+import { uniqueViolation, type Database } from '../db/client.js';
 import { apiErrors } from '../errors.js';
 import { UsersRepository } from './users-repository.js';
 
-type CreateUser = Required<Pick<CreateUserBody, 'username' | 'displayName' | 'password'>> & { isAdmin: boolean };
+type CreateUser = z.output<typeof createUserBody>;
 type UpdateUser = z.output<typeof updateUserBody>;
 
 /** Account rules: admins create and change accounts, and cannot lock the site out of administration. */
