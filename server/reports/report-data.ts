@@ -43,7 +43,7 @@ function measureText(result: SolveResult): string {
 }
 
 /** The constraints, SIL claim and spurious trips of a solved model (cheap: no solve). */
-export function analyseResult(solveId: string, modelId: string, modelName: string, sif: Sif, model: ModelFile, result: SolveResult): ResultAnalysis {
+export function analyseResult(solveId: string, modelId: string, modelName: string, sif: Sif, model: ModelFile, result: SolveResult, methods: readonly MethodResult[]): ResultAnalysis {
   const notes: string[] = [];
   const constraints = model.kind === 'fault-tree' ? architecturalConstraints(model) : null;
   if (!constraints) notes.push('architectural constraints and spurious trips need a fault tree; this is a state model');
@@ -58,6 +58,16 @@ export function analyseResult(solveId: string, modelId: string, modelName: strin
     constraints,
     claim,
     spuriousTrip: model.kind === 'fault-tree' ? spuriousTripRate(model) : null,
+    methods: methods.map((item) => ({
+      solveId: item.solveId,
+      method: item.method,
+      engine: item.result.method,
+      algorithm: item.result.algorithm,
+      pfdAvg: item.result.pfdAvg,
+      pfh: item.result.pfh,
+      interval: item.result.interval ?? null,
+      samples: item.result.samples ?? null,
+    })),
     notes,
   };
 }
@@ -121,6 +131,6 @@ export async function loadReportData(db: Database, user: SessionUser, projectId:
     projectName: access.project.name,
     revision,
     methods,
-    analysis: analyseResult(row.solve.id, modelRow.id, modelRow.name, sif, parsedModel.data, row.result),
+    analysis: analyseResult(row.solve.id, modelRow.id, modelRow.name, sif, parsedModel.data, row.result, methods),
   };
 }

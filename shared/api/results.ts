@@ -97,6 +97,19 @@ export const resultSif = z.object({
   status: sifStatus,
 });
 
+/** A succeeded solve of the same model content by one method (the latest), for the methods side by side. */
+export const methodResult = z.object({
+  solveId: recordId,
+  method: z.enum(['exact', 'montecarlo']),
+  engine: z.enum(['fault-tree', 'markov', 'montecarlo']),
+  algorithm: z.string(),
+  pfdAvg: z.number(),
+  pfh: z.number(),
+  interval: z.object({ pfdAvg: z.object({ level: z.number(), lower: z.number(), upper: z.number() }), pfh: z.object({ level: z.number(), lower: z.number(), upper: z.number() }) }).nullable(),
+  samples: z.number().int().nullable(),
+});
+export type MethodResult = z.infer<typeof methodResult>;
+
 export const resultAnalysis = z.object({
   solveId: recordId,
   modelId: recordId,
@@ -108,6 +121,8 @@ export const resultAnalysis = z.object({
   constraints: z.array(subsystemConstraint).nullable(),
   claim: silClaim,
   spuriousTrip: spuriousTrip.nullable(),
+  /** This solve first, then the latest succeeded solve of the same content by each other method. */
+  methods: z.array(methodResult),
   notes: z.array(z.string()),
 });
 export type ResultAnalysis = z.infer<typeof resultAnalysis>;

@@ -57,6 +57,11 @@ export const routes: Routes = [
         loadComponent: () => import('./models/model-editor').then((m) => m.ModelEditor),
       },
       {
+        path: 'projects/:projectId/sifs/:sifId/models/:modelId/results/:solveId',
+        title: 'Results · Proofline',
+        loadComponent: () => import('./results/results-page').then((m) => m.ResultsPage),
+      },
+      {
         path: 'projects/:projectId/members',
         title: 'Members · Proofline',
         loadComponent: () => import('./members/member-page').then((m) => m.MemberPage),
