@@ -174,7 +174,26 @@ function monteCarlo(): void {
   console.log(`  after ${elapsed.toFixed(1)} s (${samples.toLocaleString('en-US')} missions): PFDavg ${result.pfdAvg.toExponential(3)}, 99 % interval width ${(((pfd.upper - pfd.lower) / result.pfdAvg) * 100).toFixed(1)} % of the value; PFH ${result.pfh.toExponential(3)}, width ${(((pfh.upper - pfh.lower) / result.pfh) * 100).toFixed(1)} %`);
 }
 
+/** The machine's speed now: ns per stored entry of one sparse product (the issue measured about 3 ns). */
+function calibrate(): void {
+  const chain = sparseChain(100_000);
+  const index = new Map(chain.states.map((state, position) => [state.id, position]));
+  const source = Int32Array.from(chain.transitions, (transition) => index.get(transition.from)!);
+  const target = Int32Array.from(chain.transitions, (transition) => index.get(transition.to)!);
+  const rate = Float64Array.from(chain.transitions, (transition) => transition.rate);
+  const input = new Float64Array(chain.states.length).fill(1e-5);
+  const output = new Float64Array(chain.states.length);
+  const start = performance.now();
+  const repeats = 50;
+  for (let repeat = 0; repeat < repeats; repeat += 1) {
+    output.fill(0);
+    for (let slot = 0; slot < rate.length; slot += 1) output[target[slot]] += input[source[slot]] * rate[slot];
+  }
+  console.log(`calibration: one sparse product costs ${((milliseconds(start) * 1e6) / (repeats * rate.length)).toFixed(1)} ns per entry now (the issue's baseline: about 3 ns)`);
+}
+
 console.log(`Markov engine and Monte Carlo benchmark (node ${process.version}, load average ${loadavg().map((value) => value.toFixed(1)).join(' ')} on ${availableParallelism()} cores)`);
+calibrate();
 if (!process.env.BENCH_ONLY || process.env.BENCH_ONLY === "groups") independentGroups();
 if (!process.env.BENCH_ONLY || process.env.BENCH_ONLY === "crew") dependentChain();
 if (!process.env.BENCH_ONLY || process.env.BENCH_ONLY === "dense") versusDense();

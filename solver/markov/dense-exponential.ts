@@ -11,16 +11,27 @@ const PADE_13 = [
 /** theta_13 of Higham (2005), Table 2.3: the largest 1-norm for which Pade-13 needs no scaling. */
 const THETA_13 = 5.371920351148152;
 
-/** C = A B for n x n row-major matrices (i-k-j order, so the inner loop runs along rows). */
+/**
+ * C = A B for n x n row-major matrices, i-k-j order with two rows of B per pass, so the inner loop runs
+ * along rows and each pass over a row of C does two multiply-adds.
+ */
 export function multiply(a: Float64Array, b: Float64Array, n: number, out = new Float64Array(n * n)): Float64Array {
   out.fill(0);
   for (let i = 0; i < n; i += 1) {
     const rowOffset = i * n;
-    for (let k = 0; k < n; k += 1) {
+    let k = 0;
+    for (; k + 1 < n; k += 2) {
+      const first = a[rowOffset + k];
+      const second = a[rowOffset + k + 1];
+      if (first === 0 && second === 0) continue;
+      const firstOffset = k * n;
+      const secondOffset = firstOffset + n;
+      for (let j = 0; j < n; j += 1) out[rowOffset + j] += first * b[firstOffset + j] + second * b[secondOffset + j];
+    }
+    if (k < n) {
       const factor = a[rowOffset + k];
-      if (factor === 0) continue;
       const bOffset = k * n;
-      for (let j = 0; j < n; j += 1) out[rowOffset + j] += factor * b[bOffset + j];
+      if (factor !== 0) for (let j = 0; j < n; j += 1) out[rowOffset + j] += factor * b[bOffset + j];
     }
   }
   return out;
