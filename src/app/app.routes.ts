@@ -67,6 +67,26 @@ export const routes: Routes = [
         loadComponent: () => import('./members/member-page').then((m) => m.MemberPage),
       },
       {
+        path: 'devices',
+        title: 'Device library · Proofline',
+        loadComponent: () => import('./devices/device-library-page').then((m) => m.DeviceLibraryPage),
+      },
+      {
+        path: 'devices/import',
+        title: 'Import devices · Proofline',
+        loadComponent: () => import('./devices/device-import').then((m) => m.DeviceImport),
+      },
+      {
+        path: 'devices/new',
+        title: 'New device record · Proofline',
+        loadComponent: () => import('./devices/device-editor').then((m) => m.DeviceEditor),
+      },
+      {
+        path: 'devices/:deviceId',
+        title: 'Device record · Proofline',
+        loadComponent: () => import('./devices/device-editor').then((m) => m.DeviceEditor),
+      },
+      {
         path: 'admin/users',
         title: 'User accounts · Proofline',
         canActivate: [adminGuard],
