@@ -1,6 +1,6 @@
-import type { Browser, Page } from 'playwright-core';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { launchChromium, screenshot, watchForPageErrors } from './browser.js';
+import { launchChromium, newSignedOutPage, screenshot, watchForPageErrors } from './browser.js';
 
 // The seeded demo workspace (server/seed/demo-workspace.ts): the demo engineer and the terminal's
 // export compression project with its SIF register.
@@ -10,16 +10,18 @@ const NEW_TAG = 'PZT-1999';
 
 describe('the SIF register in a browser', () => {
   let browser: Browser;
+  let context: BrowserContext;
   let page: Page;
   let pageErrors: string[];
 
   beforeAll(async () => {
     browser = await launchChromium();
-    page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+    ({ context, page } = await newSignedOutPage(browser));
     pageErrors = watchForPageErrors(page);
   });
 
   afterAll(async () => {
+    await context?.close();
     await browser?.close();
   });
 
@@ -35,9 +37,9 @@ describe('the SIF register in a browser', () => {
     await expect.poll(() => page.locator('mat-toolbar').textContent()).toContain(ENGINEER.displayName);
     await page.getByText(DEMO_PROJECT, { exact: true }).click();
     await page.getByRole('heading', { name: DEMO_PROJECT }).waitFor();
-    await page.locator('tr.mat-mdc-row').first().waitFor();
+    await page.locator('tr[data-sif]').first().waitFor();
+    await expect.poll(() => registerCount(page)).toBeGreaterThan(0);
     const seededCount = await registerCount(page);
-    expect(seededCount).toBeGreaterThan(0);
     await screenshot(page, 'e2e-02-register');
 
     await page.getByRole('link', { name: 'New SIF' }).click();
@@ -57,7 +59,7 @@ describe('the SIF register in a browser', () => {
     await page.getByRole('button', { name: 'Create SIF' }).click();
 
     await page.getByRole('heading', { name: DEMO_PROJECT }).waitFor();
-    const newRow = page.locator('tr.mat-mdc-row', { hasText: NEW_TAG });
+    const newRow = page.locator(`tr[data-sif="${NEW_TAG}"]`);
     await newRow.waitFor();
     expect(await newRow.textContent()).toContain('Export pipeline pig trap door interlock');
     expect(await newRow.textContent()).toContain('RRF 500 (SIL 2)');
@@ -65,8 +67,8 @@ describe('the SIF register in a browser', () => {
     await expect.poll(() => registerCount(page)).toBe(seededCount + 1);
 
     await page.getByLabel('Search tag, title or hazardous event').fill('pig trap');
-    await expect.poll(() => page.locator('tr.mat-mdc-row').count()).toBe(1);
-    expect(await page.locator('tr.mat-mdc-row').first().textContent()).toContain(NEW_TAG);
+    await expect.poll(() => page.locator('tr[data-sif]').count()).toBe(1);
+    expect(await page.locator('tr[data-sif]').first().textContent()).toContain(NEW_TAG);
     await screenshot(page, 'e2e-04-register-with-new-sif');
 
     expect(pageErrors).toEqual([]);

@@ -9,7 +9,9 @@ export default defineConfig({
     environment: 'node',
     include: ['tests/e2e/**/*.e2e.ts'],
     globalSetup: ['tests/e2e/global-setup.ts'],
-    testTimeout: 90_000,
+    testTimeout: 300_000,
+    // Browser steps wait up to a minute on a busy machine (see STEP_TIMEOUT_MS in browser.ts).
+    expect: { poll: { timeout: 60_000, interval: 100 } },
     hookTimeout: 120_000,
     fileParallelism: false,
   },
