@@ -219,6 +219,17 @@ describe('Markov engine: methods and parts agree', () => {
   });
 });
 
+describe('Markov engine: edge cases', () => {
+  it('a chain that never fails has PFDavg 0, the largest finite RRF and a valid result', () => {
+    // The result schema (shared/solve-result.ts) holds finite numbers only; the fault-tree engine uses the
+    // same Number.MAX_VALUE for an RRF without bound.
+    const result = solveMarkovModel(model({ states: [{ id: 'OK', initial: 1 }, { id: 'DU', down: true }], transitions: [] }, 100), {});
+    expect(result.pfdAvg).toBe(0);
+    expect(result.rrf).toBe(Number.MAX_VALUE);
+    expect(solveResult.safeParse(result).success).toBe(true);
+  });
+});
+
 describe('Markov engine: bad input and cancellation', () => {
   const bad = (change: (value: MarkovModel) => void) => {
     const value = structuredClone(repairable());

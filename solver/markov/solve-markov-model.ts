@@ -127,7 +127,7 @@ export function solveMarkovModel(model: MarkovModel, options: MarkovSolveOptions
     pfdAvg,
     pfdMax,
     pfh,
-    rrf: pfdAvg > 0 ? 1 / pfdAvg : Infinity,
+    rrf: pfdAvg > 0 ? 1 / pfdAvg : Number.MAX_VALUE,
     sil: silReached(measure, model.mission.demand),
     curve: { hours: Array.from(summary.hours), pfd: Array.from(summary.pfd) },
     simplified: [],

@@ -96,7 +96,7 @@ export function simulateFaultTreeModel(model: FaultTreeModel, options: MonteCarl
     pfdAvg,
     pfdMax,
     pfh,
-    rrf: pfdAvg > 0 ? 1 / pfdAvg : Infinity,
+    rrf: pfdAvg > 0 ? 1 / pfdAvg : Number.MAX_VALUE,
     sil: silReached(measure, parsed.data.mission.demand),
     curve: { hours: curveHours, pfd: curvePfd },
     simplified: [],
