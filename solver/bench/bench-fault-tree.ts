@@ -27,14 +27,14 @@ function plant(events: number): void {
   const frequency = engine.frequencyAndImportance(rule);
   const pfh = seconds(start);
   start = performance.now();
-  const cutSets = engine.cutSets({ values: engine.meanUnavailability(), cutoff: 1e-8 * average.pfdAvg });
+  const cutSets = engine.cutSets(engine.meanUnavailability(), { cutoff: 1e-8 * average.pfdAvg });
   const cut = seconds(start);
   const memory = process.memoryUsage();
   console.log(`plant tree: ${model.events.length} events, ${model.gates.length} gates, ${groups} voting groups, ${model.ccf?.length ?? 0} CCF groups`);
   console.log(`  BDD ${engine.diagram.size} nodes over ${engine.variables.variables.length} variables, built in ${build} s`);
   console.log(`  PFD(t) at ${curve.hours.length} points (10,000 + breakpoints) + PFDavg (${average.partition.length - 1} Gauss-Kronrod intervals over ${engine.edges.length - 1} breakpoint segments, rel. error ${average.relativeError.toExponential(1)}): ${pfd} s`);
   console.log(`  PFH + every Birnbaum importance (${rule.times.length} quadrature times, rel. error ${frequency.relativeError.toExponential(1)}): ${pfh} s`);
-  console.log(`  minimal cut sets (order <= ${cutSets.maxOrder}, mean product >= 1e-8 PFDavg): ${cutSets.sets.length} in ${cut} s`);
+  console.log(`  minimal cut sets (order <= ${cutSets.maxOrder}, mean product >= ${cutSets.cutoff.toExponential(1)}): ${cutSets.sets.length} in ${cut} s`);
   console.log(`  PFDavg ${average.pfdAvg.toExponential(4)}, PFH ${frequency.pfh.toExponential(4)} /h; memory rss ${megabytes(memory.rss)}, heap ${megabytes(memory.heapUsed)}`);
   start = performance.now();
   solveModel(model, { timePoints: 10_000 });

@@ -27,8 +27,10 @@ export interface CutSetBoundOptions {
 
 export interface CutSetBounds {
   readonly sets: Int32Array[];
-  /** Upper bound of the probability of the dropped sets, at any time of the mission. */
+  /** Upper bound of the probability of the dropped sets (at any time, when values are the largest q). */
   readonly dropped: number;
+  /** Whether any set was dropped by the cutoff or the order cap. */
+  readonly truncated: boolean;
   readonly cutoff: number;
   readonly maxOrder: number;
 }
@@ -58,20 +60,32 @@ function contains(large: Int32Array, small: Int32Array): boolean {
   return i === small.length;
 }
 
-/** Removes duplicates and supersets (keeps the minimal sets). */
+/**
+ * Removes duplicates and supersets (keeps the minimal sets). Kept sets are indexed by their smallest
+ * member, so a candidate is only compared with kept sets whose smallest member it contains.
+ */
 function minimize(sets: Int32Array[], bounds: number[]): { sets: Int32Array[]; bounds: Float64Array } {
   const order = sets.map((_, index) => index).sort((x, y) => sets[x].length - sets[y].length);
+  if (order.length > 0 && sets[order[0]].length === 0) return { sets: [sets[order[0]]], bounds: Float64Array.of(bounds[order[0]]) };
   const kept: Int32Array[] = [];
   const keptBounds: number[] = [];
-  const seen = new Set<string>();
+  const bySmallest = new Map<number, Int32Array[]>();
   for (const index of order) {
     const set = sets[index];
-    const key = set.join(',');
-    if (seen.has(key)) continue;
-    if (kept.some((other) => contains(set, other))) continue;
-    seen.add(key);
+    let subsumed = false;
+    for (const member of set) {
+      const candidates = bySmallest.get(member);
+      if (candidates && candidates.some((other) => contains(set, other))) {
+        subsumed = true;
+        break;
+      }
+    }
+    if (subsumed) continue;
     kept.push(set);
     keptBounds.push(bounds[index]);
+    const list = bySmallest.get(set[0]);
+    if (list) list.push(set);
+    else bySmallest.set(set[0], [set]);
   }
   return { sets: kept, bounds: Float64Array.from(keptBounds) };
 }
@@ -83,16 +97,18 @@ function upper(family: Family): number {
 }
 
 /**
- * @param maxUnavailability largest q of each model variable over the mission.
+ * @param values a probability per model variable for the cutoff: the largest q over the mission makes
+ *   `dropped` an upper bound at every time; the mean q ranks the sets for listing (then `dropped` is
+ *   only indicative).
  */
-export function cutSetBounds(model: FaultTreeModel, variables: TreeVariables, maxUnavailability: Float64Array, options: CutSetBoundOptions = {}): CutSetBounds {
+export function cutSetBounds(model: FaultTreeModel, variables: TreeVariables, values: Float64Array, options: CutSetBoundOptions = {}): CutSetBounds {
   const maxOrder = options.maxOrder ?? 6;
   const maxSets = options.maxSets ?? 50_000;
   let cutoff = options.cutoff ?? 1e-15;
   for (;;) {
     try {
-      const top = build(model, variables, maxUnavailability, cutoff, maxOrder, maxSets);
-      return { sets: top.sets, dropped: top.dropped, cutoff, maxOrder };
+      const top = build(model, variables, values, cutoff, maxOrder, maxSets);
+      return { sets: top.sets, dropped: top.dropped, truncated: top.dropped > 0 || cutoff > (options.cutoff ?? 1e-15), cutoff, maxOrder };
     } catch (error) {
       if (!(error instanceof TooManySets) || cutoff >= 1e-3) throw error;
       cutoff *= 10;

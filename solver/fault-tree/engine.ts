@@ -3,7 +3,7 @@ import { throwIfAborted } from '../common/abort.js';
 import { integrateAdaptive, type PartitionRule } from '../common/quadrature.js';
 import { curveTimes } from '../common/time-grid.js';
 import { buildTree, type BuiltTree } from './build.js';
-import { minimalCutSets } from './cut-sets.js';
+import { cutSetBounds, type CutSetBoundOptions, type CutSetBounds } from './cut-set-bounds.js';
 import { backwardPass, flatten, forwardPass, variableMatrix, type FlatDiagram } from './evaluate.js';
 import type { EventTimeline } from '../events/event-timeline.js';
 import { compileVariables, type TreeVariables } from './variables.js';
@@ -210,8 +210,21 @@ export class FaultTreeEngine {
   }
 
   /** Minimal cut sets of the top event as lists of variable indices (see cut-sets.ts). */
-  cutSets(maxOrder?: number) {
-    return minimalCutSets(this.diagram, { maxOrder });
+  /** Minimal cut sets through the gates, dropping sets whose product of values is below the cutoff. */
+  cutSets(values: Float64Array, options: CutSetBoundOptions = {}): CutSetBounds {
+    return cutSetBounds(this.model, this.variables, values, options);
+  }
+
+  /** Each variable's mean unavailability on a coarse grid (200 points and every breakpoint), for ranking. */
+  meanUnavailability(): Float64Array {
+    const { hours, fromLeft } = curveTimes(this.missionHours, 200, this.edges);
+    const { q } = variableMatrix(this.variables.rows, hours, false, fromLeft);
+    const count = hours.length;
+    return Float64Array.from(this.variables.rowOf, (row) => {
+      let sum = 0;
+      for (let j = 0; j < count; j++) sum += q[row * count + j];
+      return sum / count;
+    });
   }
 
   /**

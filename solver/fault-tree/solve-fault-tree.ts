@@ -15,6 +15,11 @@ export const GATE_IMPORTANCE_BUDGET = 4e8;
 /** ...and while the events' q matrix at the quadrature times fits in this many doubles. */
 export const GATE_IMPORTANCE_MATRIX_LIMIT = 2 ** 23;
 
+/** Cut sets whose product of mean unavailabilities is below this share of PFDavg are not listed. */
+export const CUT_SET_CUTOFF = 1e-8;
+/** Most cut sets whose time-averaged probability is integrated. */
+export const CUT_SETS_INTEGRATED = 2000;
+
 /** Largest decision diagram built; beyond it the cut-set answer with bounds is given instead. */
 export const DIAGRAM_NODE_LIMIT = 500_000;
 /** Node evaluations allowed for the exact answer (a few seconds); beyond, the cut-set answer. */
@@ -65,20 +70,29 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
 
   progress(0.55, 'computing PFH, importance and cut sets');
   const rule = kronrodOnPartition(average.partition);
-  const cutSets = engine.cutSets();
-  if (cutSets.truncated) warnings.push(`minimal cut sets above order ${Math.max(0, ...cutSets.sets.map((set) => set.length))} are not listed`);
+  const means = engine.meanUnavailability();
+  const enumerated = engine.cutSets(means, { cutoff: Math.max(1e-300, CUT_SET_CUTOFF * average.pfdAvg) });
+  if (enumerated.truncated) {
+    warnings.push(`minimal cut sets above order ${enumerated.maxOrder} or with a product of mean unavailabilities below ${enumerated.cutoff.toExponential(1)} are not listed`);
+  }
+  const ranked = enumerated.sets
+    .map((set) => ({ set, product: set.reduce((product, variable) => product * means[variable], 1) }))
+    .sort((a, b) => b.product - a.product);
+  if (ranked.length > CUT_SETS_INTEGRATED) warnings.push(`${ranked.length} minimal cut sets found; the ${CUT_SETS_INTEGRATED} with the largest mean products are integrated`);
+  const cutSets = { sets: ranked.slice(0, CUT_SETS_INTEGRATED).map((item) => item.set) };
   const cutSetIntegrals = new Float64Array(cutSets.sets.length);
   const rowOf = engine.variables.rowOf;
   const frequency = engine.frequencyAndImportance(rule, (q, count, weights) => {
-    cutSets.sets.forEach((set, index) => {
+    for (let index = 0; index < cutSets.sets.length; index++) {
+      const rows = Int32Array.from(cutSets.sets[index], (variable) => rowOf[variable] * count);
       let sum = 0;
       for (let j = 0; j < count; j++) {
         let product = weights[j];
-        for (const variable of set) product *= q[rowOf[variable] * count + j];
+        for (let m = 0; m < rows.length; m++) product *= q[rows[m] + j];
         sum += product;
       }
       cutSetIntegrals[index] += sum;
-    });
+    }
   });
   let pfh = frequency.pfh;
   let pfhError = frequency.relativeError;
