@@ -20,7 +20,7 @@ import {
 } from '../../shared/api/devices.js';
 import type { ValidationIssue } from '../../shared/api/errors.js';
 import type { SessionUser } from '../auth/session-user.js';
-import type { Database } from '../db/client.js';
+import { uniqueViolation, type Database } from '../db/client.js';
 import { apiErrors } from '../errors.js';
 import { devicesToCsv, parseDeviceCsv, sameFigures } from './device-csv.js';
 import { deviceRepository, type DeviceRepository } from './device-repository.js';
@@ -85,6 +85,16 @@ export function createDeviceService(db: Database) {
     return apiErrors.alreadyExists('model', `the library already has "${fields.maker} ${fields.model}"; edit that record to add a version`);
   }
 
+  /** Two saves of the same maker and model at once: the unique index refuses the second, reported as a 409. */
+  async function withIdentityCheck<Result>(fields: DeviceFields, save: () => Promise<Result>): Promise<Result> {
+    try {
+      return await save();
+    } catch (error) {
+      if (uniqueViolation(error) === 'devices_maker_model_unique') throw identityTaken(fields);
+      throw error;
+    }
+  }
+
   function buildPreview(body: ParsedPreview, existing: Map<string, { id: string; version: number; fields: DeviceFields }>): ImportPreview {
     const parsed = parseDeviceCsv(body.csv, body.mapping, body.rateUnit);
     const firstLineOf = new Map<string, number>();
@@ -110,6 +120,37 @@ export function createDeviceService(db: Database) {
   async function existingByIdentity(repo: DeviceRepository) {
     const all = await repo.list({});
     return new Map(all.map((item) => [identityKey(item), { id: item.id, version: item.version, fields: item }]));
+  }
+
+  /** The writes of a confirmed import, in one transaction (the preview is computed again inside it). */
+  async function importRows(user: SessionUser, body: ParsedConfirm): Promise<ImportResult> {
+    return db.transaction(async (tx) => {
+      const repo = deviceRepository(tx);
+      const preview = buildPreview(body, await existingByIdentity(repo));
+      if (preview.fileErrors.length > 0) {
+        throw apiErrors.validation(preview.fileErrors.map((message) => ({ path: 'csv', message })));
+      }
+      const invalid = preview.rows.filter((row) => row.outcome === 'invalid');
+      if (invalid.length > 0 && !body.skipInvalidRows) {
+        const issues: ValidationIssue[] = invalid.flatMap((row) => row.errors.map((error) => ({ path: `line ${row.line}.${error.path}`, message: error.message })));
+        throw apiErrors.validation(issues);
+      }
+      const result = { created: 0, newVersions: 0, skipped: 0 };
+      const note = `CSV import by ${user.displayName}`;
+      for (const row of preview.rows) {
+        if (row.outcome === 'new' && row.fields) {
+          await repo.insertDevice({ fields: row.fields, changeNote: note, userId: user.id });
+          result.created += 1;
+        } else if (row.outcome === 'new-version' && row.fields && row.existing && body.existingRecords === 'new-version') {
+          const current = await repo.currentVersionNumber(row.existing.id, true);
+          await repo.insertVersion(row.existing.id, (current ?? row.existing.version) + 1, { fields: row.fields, changeNote: note, userId: user.id });
+          result.newVersions += 1;
+        } else {
+          result.skipped += 1;
+        }
+      }
+      return result;
+    });
   }
 
   return {
@@ -144,32 +185,36 @@ export function createDeviceService(db: Database) {
     async create(user: SessionUser, body: ParsedCreate): Promise<DeviceDetail> {
       await requireEditor(user, 'add records to the device library');
       const { fields, changeNote } = splitBody(body);
-      return db.transaction(async (tx) => {
-        const repo = deviceRepository(tx);
-        if (await repo.findByIdentity(fields.maker, fields.model)) throw identityTaken(fields);
-        const id = await repo.insertDevice({ fields, changeNote: changeNote || 'first version', userId: user.id });
-        return detail(repo, id);
-      });
+      return withIdentityCheck(fields, () =>
+        db.transaction(async (tx) => {
+          const repo = deviceRepository(tx);
+          if (await repo.findByIdentity(fields.maker, fields.model)) throw identityTaken(fields);
+          const id = await repo.insertDevice({ fields, changeNote: changeNote || 'first version', userId: user.id });
+          return detail(repo, id);
+        }),
+      );
     },
 
     async update(user: SessionUser, deviceId: string, body: ParsedUpdate): Promise<DeviceDetail> {
       await requireEditor(user, 'edit the device library');
       const { fields, changeNote } = splitBody(body);
-      return db.transaction(async (tx) => {
-        const repo = deviceRepository(tx);
-        const current = await repo.currentVersionNumber(deviceId, true);
-        if (current === undefined) throw apiErrors.notFound('no device record with this id');
-        if (current !== body.basedOnVersion) {
-          throw apiErrors.versionConflict(
-            `this record is at version ${current}, not ${body.basedOnVersion}: someone saved a newer version; compare and edit again`,
-            await detail(repo, deviceId),
-          );
-        }
-        const sameName = await repo.findByIdentity(fields.maker, fields.model);
-        if (sameName && sameName.id !== deviceId) throw identityTaken(fields);
-        await repo.insertVersion(deviceId, current + 1, { fields, changeNote, userId: user.id });
-        return detail(repo, deviceId);
-      });
+      return withIdentityCheck(fields, () =>
+        db.transaction(async (tx) => {
+          const repo = deviceRepository(tx);
+          const current = await repo.currentVersionNumber(deviceId, true);
+          if (current === undefined) throw apiErrors.notFound('no device record with this id');
+          if (current !== body.basedOnVersion) {
+            throw apiErrors.versionConflict(
+              `this record is at version ${current}, not ${body.basedOnVersion}: someone saved a newer version; compare and edit again`,
+              await detail(repo, deviceId),
+            );
+          }
+          const sameName = await repo.findByIdentity(fields.maker, fields.model);
+          if (sameName && sameName.id !== deviceId) throw identityTaken(fields);
+          await repo.insertVersion(deviceId, current + 1, { fields, changeNote, userId: user.id });
+          return detail(repo, deviceId);
+        }),
+      );
     },
 
     async previewImport(user: SessionUser, body: ParsedPreview): Promise<ImportPreview> {
@@ -179,33 +224,14 @@ export function createDeviceService(db: Database) {
 
     async confirmImport(user: SessionUser, body: ParsedConfirm): Promise<ImportResult> {
       await requireEditor(user, 'import into the device library');
-      return db.transaction(async (tx) => {
-        const repo = deviceRepository(tx);
-        const preview = buildPreview(body, await existingByIdentity(repo));
-        if (preview.fileErrors.length > 0) {
-          throw apiErrors.validation(preview.fileErrors.map((message) => ({ path: 'csv', message })));
+      try {
+        return await importRows(user, body);
+      } catch (error) {
+        if (uniqueViolation(error) === 'devices_maker_model_unique') {
+          throw apiErrors.conflict('a record of this file was added by someone else meanwhile; nothing was imported, preview the file again');
         }
-        const invalid = preview.rows.filter((row) => row.outcome === 'invalid');
-        if (invalid.length > 0 && !body.skipInvalidRows) {
-          const issues: ValidationIssue[] = invalid.flatMap((row) => row.errors.map((error) => ({ path: `line ${row.line}.${error.path}`, message: error.message })));
-          throw apiErrors.validation(issues);
-        }
-        const result = { created: 0, newVersions: 0, skipped: 0 };
-        const note = `CSV import by ${user.displayName}`;
-        for (const row of preview.rows) {
-          if (row.outcome === 'new' && row.fields) {
-            await repo.insertDevice({ fields: row.fields, changeNote: note, userId: user.id });
-            result.created += 1;
-          } else if (row.outcome === 'new-version' && row.fields && row.existing && body.existingRecords === 'new-version') {
-            const current = await repo.currentVersionNumber(row.existing.id, true);
-            await repo.insertVersion(row.existing.id, (current ?? row.existing.version) + 1, { fields: row.fields, changeNote: note, userId: user.id });
-            result.newVersions += 1;
-          } else {
-            result.skipped += 1;
-          }
-        }
-        return result;
-      });
+        throw error;
+      }
     },
 
     async exportCsv(user: SessionUser): Promise<string> {
