@@ -6,7 +6,6 @@ export const MAX_NONZEROS = 2_000_000;
 
 /** A test of a chain: its times within the mission and its move rows (source -> targets, probabilities). */
 export interface CompiledTest {
-  readonly label: string;
   readonly times: readonly number[];
   readonly sources: Int32Array;
   readonly rowStart: Int32Array;
@@ -20,7 +19,6 @@ export interface CompiledTest {
  */
 export interface CompiledChain {
   readonly id: string;
-  readonly label: string;
   readonly stateIds: readonly string[];
   readonly size: number;
   readonly initial: Float64Array;
@@ -45,9 +43,9 @@ type Chain = Pick<MarkovPart, 'states' | 'transitions' | 'tests'>;
  */
 export function compileMarkovModel(model: MarkovModel): CompiledChain[] {
   const problems: ModelIssue[] = [];
-  const chains: { id: string; label: string; chain: Chain; path: readonly (string | number)[] }[] = [
-    { id: 'main', label: model.name, chain: model, path: [] },
-    ...(model.parts ?? []).map((part, index) => ({ id: part.id, label: part.label ?? part.id, chain: part, path: ['parts', index] })),
+  const chains: { id: string; chain: Chain; path: readonly (string | number)[] }[] = [
+    { id: 'main', chain: model, path: [] },
+    ...(model.parts ?? []).map((part, index) => ({ id: part.id, chain: part, path: ['parts', index] })),
   ];
   let nonzeros = 0;
   for (const { chain, path } of chains) {
@@ -86,10 +84,10 @@ export function compileMarkovModel(model: MarkovModel): CompiledChain[] {
   if (problems.length > 0) throw new ModelError(problems);
   const referenceIssues = markovIssues(model);
   if (referenceIssues.length > 0) throw new ModelError(referenceIssues);
-  return chains.map(({ id, label, chain }) => compileChain(id, label, chain, model.mission.hours));
+  return chains.map(({ id, chain }) => compileChain(id, chain, model.mission.hours));
 }
 
-function compileChain(id: string, label: string, chain: Chain, missionHours: number): CompiledChain {
+function compileChain(id: string, chain: Chain, missionHours: number): CompiledChain {
   const size = chain.states.length;
   const index = new Map(chain.states.map((state, position) => [state.id, position]));
   const initial = new Float64Array(size);
@@ -118,10 +116,9 @@ function compileChain(id: string, label: string, chain: Chain, missionHours: num
     exitRate[from] += transition.rate;
     if (down[from] === 0 && down[to] === 1 && !transition.detected) downFlowRate[from] += transition.rate;
   }
-  const tests = (chain.tests ?? []).map((test, testIndex) => compileTest(test, testIndex, index, missionHours));
+  const tests = (chain.tests ?? []).map((test) => compileTest(test, index, missionHours));
   return {
     id,
-    label,
     stateIds: chain.states.map((state) => state.id),
     size,
     initial,
@@ -138,7 +135,6 @@ function compileChain(id: string, label: string, chain: Chain, missionHours: num
 
 function compileTest(
   test: NonNullable<Chain['tests']>[number],
-  testIndex: number,
   index: Map<string, number>,
   missionHours: number,
 ): CompiledTest {
@@ -168,7 +164,6 @@ function compileTest(
     rowStart[row + 1] = targets.length;
   });
   return {
-    label: test.label ?? `test ${testIndex}`,
     times,
     sources,
     rowStart,

@@ -20,7 +20,6 @@ export interface SimulatedMode {
 /** A fault tree ready to simulate: modes, deterministic test windows and the structure as a DAG. */
 export interface CompiledSimulation {
   readonly missionHours: number;
-  readonly eventIds: readonly string[];
   readonly modes: readonly SimulatedMode[];
   /** Constant on-demand probabilities (NaN for rate events). */
   readonly probabilities: Float64Array;
@@ -186,7 +185,6 @@ export function compileSimulation(model: FaultTreeModel): CompiledSimulation {
   parentLists.forEach((list, node) => (parentStart[node + 1] = parentStart[node] + list.length));
   return {
     missionHours,
-    eventIds: model.events.map((event) => event.id),
     modes,
     probabilities,
     windowTimes: Float64Array.from(windows, (window) => window.time),
