@@ -27,8 +27,9 @@ export function logAxisRange(values: readonly number[]): { min: number; max: num
     if (value > largest) largest = value;
   }
   if (!Number.isFinite(smallest)) return { min: 1e-6, max: 1 };
-  const min = 10 ** Math.floor(Math.log10(smallest / 2));
-  const max = 10 ** Math.ceil(Math.log10(largest * 1.5));
+  const decade = (exponent: number) => Number(`1e${exponent}`);
+  const min = decade(Math.floor(Math.log10(smallest / 2)));
+  const max = decade(Math.ceil(Math.log10(largest * 1.5)));
   return { min, max: max > min ? max : min * 10 };
 }
 

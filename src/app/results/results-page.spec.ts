@@ -1,0 +1,173 @@
+import { HttpTestingController } from '@angular/common/http/testing';
+import { NO_ERRORS_SCHEMA } from '@angular/core';
+import { TestBed } from '@angular/core/testing';
+import { MatButton } from '@angular/material/button';
+import { MatIcon } from '@angular/material/icon';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import { RouterTestingHarness } from '@angular/router/testing';
+import { resultAnalysis, type ResultAnalysis } from '../../../shared/api/results.js';
+import { deriveSifTarget } from '../../../shared/api/sif-target.js';
+import { solve } from '../../../shared/api/solves.js';
+import type { FaultTreeModel } from '../../../shared/model-file.js';
+import { silReached } from '../../../shared/sil.js';
+import { architecturalConstraints, silClaim, spuriousTripRate } from '../../../solver/analysis/index.js';
+import { solveModel } from '../../../solver/index.js';
+import { CanvasFocus } from '../canvas/canvas-focus';
+import { appTestProviders, settle } from '../testing/app-test-providers';
+import { OWNER_ID, PROJECT_ID } from '../testing/fixtures';
+import { ResultsPage } from './results-page';
+
+const SIF_ID = '3c2b1a0f-9e8d-4c7b-8a69-5f4e3d2c1b0a';
+const MODEL_ID = '4d3c2b1a-0f9e-4d8c-9b7a-6a5f4e3d2c1b';
+const SOLVE_ID = '5e4d3c2b-1a0f-4e9d-8c8b-7b6a5f4e3d2c';
+
+/** Transmitter in series with two valves 1oo2 (invented figures); lambda scales the valves. */
+const models = new Map<number, FaultTreeModel>();
+function model(valveLambda: number): FaultTreeModel {
+  const known = models.get(valveLambda);
+  if (known) return known;
+  const created = createModel(valveLambda);
+  models.set(valveLambda, created);
+  return created;
+}
+
+function createModel(valveLambda: number): FaultTreeModel {
+  return {
+    format: 'proofline/model',
+    version: 1,
+    name: 'Spec function',
+    mission: { hours: 87_600, demand: 'low' },
+    kind: 'fault-tree',
+    events: [
+      { id: 'PT', label: 'Transmitter', lambdaDU: 2e-7, lambdaDD: 1e-6, lambdaS: 1e-6, mttrHours: 8, deviceType: 'B', proofTest: { intervalHours: 8760 } },
+      { id: 'XV-A', label: 'Valve A', lambdaDU: valveLambda, lambdaS: 1e-6, mttrHours: 24, deviceType: 'A', proofTest: { intervalHours: 8760 } },
+      { id: 'XV-B', label: 'Valve B', lambdaDU: valveLambda, lambdaS: 1e-6, mttrHours: 24, deviceType: 'A', proofTest: { intervalHours: 8760 } },
+    ],
+    gates: [
+      { id: 'TOP', type: 'or', inputs: ['PT', 'VALVES'] },
+      { id: 'VALVES', label: 'Valves 1oo2', type: 'and', inputs: ['XV-A', 'XV-B'] },
+    ],
+    ccf: [{ id: 'CCF-XV', members: ['XV-A', 'XV-B'], beta: 0.2, model: 'beta' }],
+    top: 'TOP',
+  };
+}
+
+const solved = new Map<FaultTreeModel, ReturnType<typeof build>>();
+
+/** Each model is solved once per run (the solve is the slow part of these specs). */
+function fixtures(file: FaultTreeModel) {
+  const known = solved.get(file);
+  if (known) return known;
+  const built = build(file);
+  solved.set(file, built);
+  return built;
+}
+
+function build(file: FaultTreeModel) {
+  const result = solveModel(file, { timePoints: 200 });
+  const check = deriveSifTarget({ kind: 'sil', value: 2 }, 'low');
+  if (!check.ok) throw new Error(check.issue.message);
+  const constraints = architecturalConstraints(file);
+  const analysis: ResultAnalysis = resultAnalysis.parse({
+    solveId: SOLVE_ID,
+    modelId: MODEL_ID,
+    modelName: file.name,
+    sif: { id: SIF_ID, tag: 'PZT-0301', title: 'Spec shutdown', demandMode: 'low', target: { kind: 'sil', value: 2 }, derivedTarget: check.derived, status: 'draft' },
+    model: file,
+    constraints,
+    claim: silClaim({ probabilitySil: silReached(result.pfdAvg, 'low'), demand: 'low', measureText: `PFDavg ${result.pfdAvg}`, constraints }),
+    spuriousTrip: spuriousTripRate(file),
+    methods: [{ solveId: SOLVE_ID, method: 'exact', engine: 'fault-tree', algorithm: result.algorithm, pfdAvg: result.pfdAvg, pfh: result.pfh, interval: null, samples: null }],
+    notes: [],
+  });
+  const record = solve.parse({
+    id: SOLVE_ID,
+    projectId: PROJECT_ID,
+    modelId: MODEL_ID,
+    revisionNumber: null,
+    draftVersion: 3,
+    contentHash: 'abc',
+    solverVersion: result.solverVersion,
+    settings: { method: 'exact', timePoints: 200 },
+    status: 'succeeded',
+    progress: 1,
+    stage: null,
+    error: null,
+    cached: false,
+    cancelRequested: false,
+    requestedById: OWNER_ID,
+    requestedByDisplayName: 'Mira Okafor',
+    createdAt: '2026-01-05T10:00:00.000Z',
+    startedAt: '2026-01-05T10:00:01.000Z',
+    finishedAt: '2026-01-05T10:00:02.000Z',
+    result,
+  });
+  return { result, analysis, record };
+}
+
+// The machine may be busy with builds: a page with a real solved result gets 30 s per test.
+describe('ResultsPage', { timeout: 30_000 }, () => {
+  let http: HttpTestingController;
+
+  async function open(file: FaultTreeModel) {
+    TestBed.configureTestingModule({
+      providers: appTestProviders([{ path: 'projects/:projectId/sifs/:sifId/models/:modelId/results/:solveId', component: ResultsPage }]),
+    });
+    // jsdom draws no canvas: the charts are left out here (their options are checked in chart-options.spec.ts).
+    TestBed.overrideComponent(ResultsPage, { set: { imports: [RouterLink, MatButton, MatIcon, MatProgressBar], schemas: [NO_ERRORS_SCHEMA] } });
+    http = TestBed.inject(HttpTestingController);
+    const data = fixtures(file);
+    const harness = await RouterTestingHarness.create();
+    const navigation = harness.navigateByUrl(`/projects/${PROJECT_ID}/sifs/${SIF_ID}/models/${MODEL_ID}/results/${SOLVE_ID}`);
+    await settle(harness.fixture);
+    http.expectOne(`/api/projects/${PROJECT_ID}/solves/${SOLVE_ID}`).flush(data.record);
+    await settle(harness.fixture);
+    http.expectOne(`/api/projects/${PROJECT_ID}/solves/${SOLVE_ID}/analysis`).flush(data.analysis);
+    await navigation;
+    await settle(harness.fixture);
+    return { element: harness.routeNativeElement as HTMLElement, ...data };
+  }
+
+  afterEach(() => http.verify());
+
+  it('shows the verdict: the measure, the SIL band and that a SIL 2 target is met with its margin', async () => {
+    const { element, result } = await open(model(2e-6));
+    expect(result.pfdAvg).toBeGreaterThanOrEqual(1e-3);
+    expect(result.pfdAvg).toBeLessThan(1e-2);
+    expect(element.querySelector('[data-measure-value]')?.textContent?.trim()).toBe(result.pfdAvg.toExponential(2));
+    const text = element.querySelector('[data-verdict-text]')?.textContent ?? '';
+    expect(text).toContain('Meets the target (SIL 2)');
+    expect(text).toContain(`${Number((1e-2 / result.pfdAvg).toPrecision(3))} ×`);
+    expect(element.querySelector('[data-methods]')?.textContent).toContain('Exact (fault tree)');
+  });
+
+  it('says a target is missed when PFDavg is at or above 1e-2', async () => {
+    const { element, result } = await open(model(1e-4));
+    expect(result.pfdAvg).toBeGreaterThanOrEqual(1e-2);
+    expect(element.querySelector('[data-verdict-text]')?.textContent).toContain('Does not meet the target');
+  });
+
+  it('tables: contributions by subsystem first, cut sets by probability, the claim limits with their rule sets', async () => {
+    const { element, result } = await open(model(2e-6));
+    const contributionIds = [...element.querySelectorAll('[data-contributions] tbody tr td:first-child')].map((cell) => cell.textContent?.trim().split(' ')[0]);
+    expect(contributionIds.slice(0, 2)).toEqual(['VALVES', 'PT']);
+    const cutRows = element.querySelectorAll('[data-cut-sets] tbody tr');
+    expect(cutRows.length).toBe(result.cutSets.length);
+    expect(cutRows[0].textContent).toContain('CCF-XV');
+    const limits = element.querySelector('[data-claim-limits]')?.textContent ?? '';
+    expect(limits).toContain('IEC 61508-2:2010 7.4.4.2, Table 2 (type A)');
+    expect(limits).toContain('IEC 61511-1:2016 11.4.5, Table 6');
+    expect(element.querySelector('[data-spurious-rate]')?.textContent?.trim()).not.toBe('');
+  });
+
+  it('clicking a row highlights that item on the canvas', async () => {
+    const { element } = await open(model(2e-6));
+    const focus = TestBed.inject(CanvasFocus);
+    const valves = [...element.querySelectorAll<HTMLElement>('[data-contributions] tbody tr')].find((row) => row.textContent?.includes('VALVES'));
+    valves?.click();
+    expect(focus.highlighted()).toEqual(['VALVES']);
+    element.querySelector<HTMLElement>('[data-cut-sets] tbody tr:nth-child(3)')?.click();
+    expect(focus.highlighted().length).toBe(2);
+  });
+});
