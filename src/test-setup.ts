@@ -5,3 +5,7 @@ class ResizeObserverStub {
   disconnect(): void {}
 }
 globalThis.ResizeObserver ??= ResizeObserverStub as unknown as typeof ResizeObserver;
+
+// A spec drives several Material harness steps; on a busy machine the first spec of a file (which also
+// pays for the first render) can need more than vitest's default 5 s.
+vi.setConfig({ testTimeout: 30_000 });

@@ -6,7 +6,7 @@ import { MatDialogActions, MatDialogClose, MatDialogContent, MatDialogRef, MatDi
 import { MatError, MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { createUserBody, type User } from '../../../shared/api/users.js';
-import { isApiError } from '../errors/api-error';
+import { isApiError, type ApiError } from '../errors/api-error';
 import { fieldMessage, schemaValidator } from '../forms/schema-validator';
 import { showServerIssues } from '../forms/server-issues';
 import { UserAccounts } from './user-accounts';
@@ -86,11 +86,9 @@ export class CreateUserDialog {
     try {
       this.dialogRef.close(await this.accounts.create(this.form.getRawValue()));
     } catch (error) {
-      if (isApiError(error, 409) && error.code === 'already_exists') {
-        this.form.controls.username.setErrors({ server: 'is taken by another account' });
-        return;
-      }
-      const placed = isApiError(error, 400) && showServerIssues(error, (path) => this.form.get(path));
+      // 400 validation_failed and 409 already_exists (a username taken) name their fields.
+      const fieldError = isApiError(error, 400) || (isApiError(error, 409) && error.code === 'already_exists');
+      const placed = fieldError && showServerIssues(error as ApiError, (path) => this.form.get(path));
       if (!placed) this.errorHandler.handleError(error);
     } finally {
       this.busy.set(false);

@@ -92,10 +92,7 @@ export class ChangePasswordDialog {
       this.snackBar.open('Password changed; your other sessions were signed out', undefined, { duration: 5000 });
       this.dialogRef.close();
     } catch (error) {
-      if (isApiError(error, 401) && error.code === 'invalid_credentials') {
-        this.form.controls.currentPassword.setErrors({ server: 'is not your current password' });
-        return;
-      }
+      // A wrong current password comes back as a 400 naming currentPassword, shown under that field.
       const placed = isApiError(error, 400) && showServerIssues(error, (path) => this.form.get(path));
       if (!placed) this.errorHandler.handleError(error);
     } finally {

@@ -148,6 +148,26 @@ describe('SifEditor', () => {
     });
   });
 
+  it('shows a tag already taken in the project under the tag field and keeps the form', async () => {
+    const record = aSif({ tag: 'HS-310' });
+    const { harness, loader, input, field } = await open({ record });
+    await (await input('tag')).setValue('HS-311');
+    await (await loader.getHarness(MatButtonHarness.with({ text: 'Save changes' }))).click();
+    http.expectOne({ method: 'PATCH', url: `${SIFS_URL}/${record.id}` }).flush(
+      {
+        error: {
+          code: 'already_exists',
+          message: 'tag: is already used by another SIF of this project',
+          details: { issues: [{ path: 'tag', message: 'is already used by another SIF of this project' }] },
+        },
+      },
+      { status: 409, statusText: 'Conflict' },
+    );
+    await settle(harness.fixture);
+    expect(await (await field('Tag')).getTextErrors()).toEqual(['Tag is already used by another SIF of this project']);
+    expect(await (await input('tag')).getValue()).toBe('HS-311');
+  });
+
   describe('a save that meets a newer version (409)', () => {
     async function saveStaleTitle() {
       const mine = aSif({ title: 'Reactor R-301 high-temperature trip', version: 1 });

@@ -17,7 +17,7 @@ import type { Project } from '../../../shared/api/projects.js';
 import { SIF_DEMAND_MODES, type SifTargetKind } from '../../../shared/api/sif-target.js';
 import { SIF_STATUSES, sifConflictDetails, type Sif } from '../../../shared/api/sifs.js';
 import { SessionStore } from '../auth/session-store';
-import { isApiError } from '../errors/api-error';
+import { isApiError, type ApiError } from '../errors/api-error';
 import { fieldMessage } from '../forms/schema-validator';
 import { showServerIssues } from '../forms/server-issues';
 import { ProjectCatalog } from '../projects/project-catalog';
@@ -232,12 +232,9 @@ export class SifEditor {
         return;
       }
     }
-    if (isApiError(error, 409) && error.code === 'already_exists') {
-      this.form.controls.tag.setErrors({ server: error.message });
-      this.form.controls.tag.markAsTouched();
-      return;
-    }
-    const placed = isApiError(error, 400) && showServerIssues(error, (path) => controlForIssue(this.form, path));
+    // 400 validation_failed and 409 already_exists (a tag taken in the project) name their fields.
+    const fieldError = isApiError(error, 400) || (isApiError(error, 409) && error.code === 'already_exists');
+    const placed = fieldError && showServerIssues(error as ApiError, (path) => controlForIssue(this.form, path));
     if (!placed) this.errorHandler.handleError(error);
   }
 
