@@ -91,6 +91,11 @@ describe('device library: records and who may use them', () => {
     expect(again.response.status).toBe(409);
     expect(again.response.body.error.code).toBe('already_exists');
   });
+  it('answers one of two simultaneous creations of the same device with 409, not 500', async () => {
+    const [first, second] = await Promise.all([signedInAgent(app, 'engineer'), signedInAgent(app, 'lead')]);
+    const replies = await Promise.all([first.post('/api/devices').send(transmitterFields()), second.post('/api/devices').send(transmitterFields())]);
+    expect(replies.map((reply) => reply.status).sort()).toEqual([201, 409]);
+  });
 });
 
 describe('device library: versions', () => {
