@@ -1,5 +1,6 @@
 import { kronrodOnPartition } from '../common/quadrature.js';
 import { FaultTreeEngine } from '../fault-tree/engine.js';
+import { forwardPass, variableMatrix } from '../fault-tree/evaluate.js';
 import { votedGroup } from '../fault-tree/test-models.js';
 import { solveModel } from '../index.js';
 import { plantTree, sharedPoolTree } from './plant-tree.js';
@@ -36,6 +37,16 @@ function plant(events: number): void {
   console.log(`  PFH + every Birnbaum importance (${rule.times.length} quadrature times, rel. error ${frequency.relativeError.toExponential(1)}): ${pfh} s`);
   console.log(`  minimal cut sets (order <= ${cutSets.maxOrder}, mean product >= ${cutSets.cutoff.toExponential(1)}): ${cutSets.sets.length} in ${cut} s`);
   console.log(`  PFDavg ${average.pfdAvg.toExponential(4)}, PFH ${frequency.pfh.toExponential(4)} /h; memory rss ${megabytes(memory.rss)}, heap ${megabytes(memory.heapUsed)}`);
+  // The machine's speed on a plain pass over this diagram, to compare with the issue's 2.5-3e8 per second.
+  const probe = new Float64Array(256).map((_, index) => (index + 0.5) * (model.mission.hours / 256));
+  const { q } = variableMatrix(engine.variables.rows, probe, false);
+  const values = new Float64Array(engine.diagram.size * probe.length);
+  forwardPass(engine.diagram, q, probe.length, values);
+  start = performance.now();
+  const passes = 10;
+  for (let i = 0; i < passes; i++) forwardPass(engine.diagram, q, probe.length, values);
+  const rate = (passes * engine.diagram.size * probe.length) / ((performance.now() - start) / 1000);
+  console.log(`  this machine now: ${rate.toExponential(2)} node evaluations per second (plain forward pass)`);
   start = performance.now();
   solveModel(model, { timePoints: 10_000 });
   console.log(`  whole solveModel (with cut sets, importance, simplified formulas): ${seconds(start)} s`);

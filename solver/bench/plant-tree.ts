@@ -24,7 +24,8 @@ export interface PlantTreeOptions {
 
 /**
  * A generated plant-like fault tree of an invented process plant: voting groups of 2-6 channels (each
- * channel a sensor or valve with DU/DD rates plus an I/O card, sometimes a shared support), beta-factor
+ * channel a sensor or valve with DU/DD rates plus an I/O card, often a trip relay, sometimes a shared
+ * support), beta-factor
  * groups over each group's devices, staggered proof tests on monthly slots, partial stroke tests on valves,
  * groups combined into trains and units. Figures are invented.
  */
@@ -76,6 +77,11 @@ export function plantTree(options: PlantTreeOptions): FaultTreeModel {
       });
       events.push({ id: card, lambdaDU: 5e-9, lambdaDD: 2e-7, mttrHours: 8, proofTest: { intervalHours: 17520, firstHours: 17520 } });
       const inputs = [device, card];
+      if (next() < 0.6) {
+        const relay = `G${group}-RL${c + 1}`;
+        events.push({ id: relay, lambdaDU: 2e-8, lambdaDD: 1e-7, mttrHours: 8, proofTest: { intervalHours: interval, firstHours: Math.min(slot, interval) } });
+        inputs.push(relay);
+      }
       if (next() < (options.supportShare ?? 0.3)) inputs.push(ensureFeeder(group));
       if (next() < (options.siteShare ?? 0.02)) inputs.push(pick(siteSupports));
       gates.push({ id: channel, type: 'or', inputs });

@@ -118,25 +118,6 @@ export class Bdd {
     return vote(0, sorted.length, k);
   }
 
-  /** The function with one variable fixed to a value (Shannon cofactor), computed by one traversal. */
-  restrict(root: number, variable: number, value: boolean): number {
-    const memo = new Map<number, number>();
-    const walk = (node: number): number => {
-      if (node < 2 || this.variables[node] > variable) return node;
-      const known = memo.get(node);
-      if (known !== undefined) return known;
-      let result: number;
-      if (this.variables[node] === variable) {
-        result = value ? this.highs[node] : this.lows[node];
-      } else {
-        result = this.makeNode(this.variables[node], walk(this.lows[node]), walk(this.highs[node]));
-      }
-      memo.set(node, result);
-      return result;
-    };
-    return walk(root);
-  }
-
   /** The nodes reachable from a root, terminals first, in increasing (topological) order. */
   reachable(root: number): Int32Array {
     const seen = new Uint8Array(this.count);
