@@ -62,7 +62,7 @@ const PASTE_OFFSET = { x: 40, y: 40 };
   imports: [FFlowModule, Palette, PropertiesPanel, MatIconButton, MatIcon, MatTooltip],
   templateUrl: './model-canvas.html',
   styleUrl: './model-canvas.scss',
-  host: { '(keydown)': 'onKeydown($event)' },
+  host: { '(document:keydown)': 'onKeydown($event)' },
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ModelCanvas {
@@ -120,7 +120,9 @@ export class ModelCanvas {
 
   protected onRendered(): void {
     this.rendered = true;
-    this.canvas()?.fitToScreen({ x: 80, y: 80 }, false);
+    // A nearly empty model stays at scale 1 (fitting one card would blow it up); others fit the view.
+    if (this.view().nodes.length < 3) this.canvas()?.resetScaleAndCenter(false);
+    else this.canvas()?.fitToScreen({ x: 80, y: 80 }, false);
   }
 
   protected onCreateNode(event: FCreateNodeEvent<PaletteKind>): void {
@@ -193,8 +195,9 @@ export class ModelCanvas {
   }
 
   protected onKeydown(event: KeyboardEvent): void {
+    // Shortcuts work wherever the focus is on the page, except while typing or in a dialog or menu.
     const target = event.target as HTMLElement;
-    if (target.closest('input, textarea, mat-select, [contenteditable], pl-properties-panel')) return;
+    if (event.defaultPrevented || target.closest('input, textarea, select, mat-select, [contenteditable], pl-properties-panel, .cdk-overlay-container')) return;
     const command = event.ctrlKey || event.metaKey;
     const key = event.key.toLowerCase();
     const handled = (action: () => void): void => {

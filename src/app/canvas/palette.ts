@@ -42,10 +42,12 @@ const STATE_MODEL_ENTRIES: readonly PaletteEntry[] = [
             [attr.aria-label]="'Add ' + entry.title"
             (click)="add.emit(entry.kind)"
           >
-            <span class="shape" [class]="'shape shape-' + entry.shape" aria-hidden="true"></span>
-            <span class="text">
-              <span class="title">{{ entry.title }}</span>
-              <span class="hint">{{ entry.hint }}</span>
+            <span class="entry-inner">
+              <span [class]="'shape shape-' + entry.shape" aria-hidden="true"></span>
+              <span class="text">
+                <span class="title">{{ entry.title }}</span>
+                <span class="hint">{{ entry.hint }}</span>
+              </span>
             </span>
           </button>
         </li>

@@ -262,5 +262,16 @@ export class DraftStore {
 /** The model file schema's issues of a draft, with paths written as in the file ("events[2].lambdaDU"). */
 export function modelIssues(model: EditableModel): ValidationIssue[] {
   const result = modelFile.safeParse(model);
-  return result.success ? [] : result.error.issues.map((issue) => ({ path: formatPath(issue.path), message: issue.message }));
+  return result.success ? [] : result.error.issues.map((issue) => ({ path: formatPath(issue.path), message: plainMessage(issue) }));
+}
+
+/** The schema's generic messages for lists that are too short, said in the trade's words. */
+function plainMessage(issue: { code: string; path: PropertyKey[]; message: string; minimum?: unknown }): string {
+  if (issue.code !== 'too_small') return issue.message;
+  const last = issue.path[issue.path.length - 1];
+  if (last === 'inputs') return 'a gate needs at least one input: connect events or gates into it';
+  if (last === 'members') return `a common-cause group needs at least ${String(issue.minimum ?? 2)} members: connect events into it`;
+  if (last === 'events') return 'a fault tree needs at least one event';
+  if (last === 'states') return 'a state model needs at least one state';
+  return issue.message;
 }

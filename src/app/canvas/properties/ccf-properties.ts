@@ -1,12 +1,12 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { formatTyped } from '../../units/units';
 import type { DraftCommonCauseGroup } from '../model-graph';
-import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId } from './typed-number';
+import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId, formValueSignal } from './typed-number';
 
 /**
  * A common-cause group: the beta factor of DU failures and, optionally, of DD failures (IEC 61508-6
@@ -88,7 +88,7 @@ export class CcfProperties {
     betaD: numberControl(undefined, { min: 0, max: 100 }),
     factor: numberControl(undefined, { min: 0 }),
   });
-  private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
+  private readonly value = formValueSignal(this.form, inject(DestroyRef));
   private lastEmitted: DraftCommonCauseGroup | null = null;
   protected readonly isPds = computed(() => this.value().model === 'pds');
   protected readonly members = computed(() => (this.group().members.length === 0 ? 'none yet' : this.group().members.join(', ')));
@@ -108,6 +108,7 @@ export class CcfProperties {
         },
         { emitEvent: false },
       );
+      this.value.set(this.form.getRawValue());
     });
     effect(() => (this.readOnly() ? this.form.disable({ emitEvent: false }) : this.form.enable({ emitEvent: false })));
     this.form.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.emitIfValid());

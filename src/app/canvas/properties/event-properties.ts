@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output, signal } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonToggle, MatButtonToggleGroup } from '@angular/material/button-toggle';
 import { MatCheckbox } from '@angular/material/checkbox';
@@ -23,7 +23,7 @@ import {
   type RateUnit,
 } from '../../units/units';
 import { derivedFigures, formatPercent } from './derived-figures';
-import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId } from './typed-number';
+import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId, formValueSignal } from './typed-number';
 
 const PERCENT = { min: 0, max: 100 };
 
@@ -98,7 +98,7 @@ export class EventProperties {
   protected readonly formatPercent = formatPercent;
   protected readonly formatInterval = formatInterval;
 
-  private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
+  private readonly value = formValueSignal(this.form, inject(DestroyRef));
   private lastEmitted: BasicEvent | null = null;
   protected readonly kind = computed(() => this.value().kind);
   protected readonly hasProofTest = computed(() => this.value().hasProofTest);
@@ -160,6 +160,7 @@ export class EventProperties {
     this.showRates(controls.rateUnit.value, event);
     this.showIntervals(controls.intervalUnit.value, event);
     this.applyKind();
+    this.value.set(this.form.getRawValue());
   }
 
   /** Writes the stored rates in the chosen unit. */

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators, type AbstractControl, type ValidationErrors } from '@angular/forms';
 import { MatButton } from '@angular/material/button';
 import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
@@ -8,7 +8,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import type { GateType } from '../../../../shared/model-file.js';
 import { gateLogicInWords, kFromMooN, mFromK } from '../gate-logic';
 import type { DraftGate } from '../model-graph';
-import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId } from './typed-number';
+import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId, formValueSignal } from './typed-number';
 
 export const GATE_TYPE_LABELS: Record<GateType, string> = { or: 'OR: any input', and: 'AND: all inputs', atLeast: 'Voting: M out of N to trip' };
 
@@ -90,7 +90,7 @@ export class GateProperties {
     type: new FormControl<GateType>('or', { nonNullable: true }),
     m: numberControl(undefined, { required: true, min: 1, integer: true }),
   });
-  private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
+  private readonly value = formValueSignal(this.form, inject(DestroyRef));
   private lastEmitted: DraftGate | null = null;
 
   protected readonly inputCount = computed(() => this.gate().inputs.length);
@@ -122,6 +122,7 @@ export class GateProperties {
       );
       this.applyType();
       this.form.controls.m.updateValueAndValidity({ emitEvent: false });
+      this.value.set(this.form.getRawValue());
     });
     effect(() => {
       if (this.readOnly()) this.form.disable({ emitEvent: false });

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatError, MatFormField, MatLabel, MatSuffix } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
@@ -7,7 +7,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import type { DemandMode } from '../../../../shared/model-file.js';
 import { INTERVAL_UNITS, INTERVAL_UNIT_LABELS, formatTyped, intervalFromHours, intervalToHours, type IntervalUnit } from '../../units/units';
 import type { EditableModel } from '../model-graph';
-import { numberControl, numberMessage, readControl } from './typed-number';
+import { numberControl, numberMessage, readControl, formValueSignal } from './typed-number';
 
 export interface ModelHeader {
   readonly name: string;
@@ -77,7 +77,7 @@ export class ModelProperties {
     demand: new FormControl<DemandMode>('low', { nonNullable: true }),
     description: new FormControl('', { nonNullable: true, validators: Validators.maxLength(5000) }),
   });
-  private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
+  private readonly value = formValueSignal(this.form, inject(DestroyRef));
   protected readonly unitLabel = computed(() => INTERVAL_UNIT_LABELS[this.value().unit ?? 'years']);
   private lastEmitted: ModelHeader | null = null;
 
@@ -95,6 +95,7 @@ export class ModelProperties {
         },
         { emitEvent: false },
       );
+      this.value.set(this.form.getRawValue());
     });
     effect(() => (this.readOnly() ? this.form.disable({ emitEvent: false }) : this.form.enable({ emitEvent: false })));
     this.form.controls.unit.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe((unit) => {

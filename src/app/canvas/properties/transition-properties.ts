@@ -1,12 +1,12 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatError, MatFormField, MatLabel, MatSuffix } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { MarkovTransition } from '../../../../shared/model-file.js';
 import { RATE_UNITS, RATE_UNIT_LABELS, formatTyped, rateFromPerHour, rateToPerHour, type RateUnit } from '../../units/units';
-import { numberControl, numberMessage, readControl } from './typed-number';
+import { numberControl, numberMessage, readControl, formValueSignal } from './typed-number';
 
 /** A transition of a state model: its rate (typed per hour, FIT or per year, stored per hour) and label. */
 @Component({
@@ -56,7 +56,7 @@ export class TransitionProperties {
     unit: new FormControl<RateUnit>('perHour', { nonNullable: true }),
     label: new FormControl('', { nonNullable: true, validators: Validators.maxLength(200) }),
   });
-  private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
+  private readonly value = formValueSignal(this.form, inject(DestroyRef));
   protected readonly unitLabel = computed(() => RATE_UNIT_LABELS[this.value().unit ?? 'perHour']);
   private lastEmitted: MarkovTransition | null = null;
 
@@ -68,6 +68,7 @@ export class TransitionProperties {
         { rate: formatTyped(rateFromPerHour(transition.rate, this.form.controls.unit.value)), label: transition.label ?? '' },
         { emitEvent: false },
       );
+      this.value.set(this.form.getRawValue());
     });
     effect(() => (this.readOnly() ? this.form.disable({ emitEvent: false }) : this.form.enable({ emitEvent: false })));
     this.form.controls.unit.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe((unit) => {

@@ -1,3 +1,6 @@
+import { signal, type DestroyRef, type WritableSignal } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import type { Observable } from 'rxjs';
 import { FormControl, type AbstractControl, type ValidationErrors, type ValidatorFn } from '@angular/forms';
 import { formatTyped, readTypedNumber } from '../../units/units';
 
@@ -56,7 +59,19 @@ export const ITEM_ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9_.\-]{0,63}$/;
 /** Refuses an id another item of the model already has. */
 export function uniqueId(taken: () => ReadonlySet<string>, own: () => string): ValidatorFn {
   return (control: AbstractControl): ValidationErrors | null => {
+    // An empty id (the form being built, before the inputs arrive) is the required validator's business.
     const value = String(control.value ?? '');
+    if (value === '') return null;
     return value !== own() && taken().has(value) ? { taken: true } : null;
   };
+}
+
+/**
+ * A form's raw value as a signal. It follows the form's value changes; after a programmatic patch made
+ * without events (loading the selected item), the caller sets it again from `getRawValue()`.
+ */
+export function formValueSignal<T>(form: { getRawValue(): T; valueChanges: Observable<unknown> }, destroyRef: DestroyRef): WritableSignal<T> {
+  const value = signal(form.getRawValue());
+  form.valueChanges.pipe(takeUntilDestroyed(destroyRef)).subscribe(() => value.set(form.getRawValue()));
+  return value;
 }
