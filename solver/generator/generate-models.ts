@@ -338,6 +338,9 @@ function testSchedules(groups: readonly GroupPlan[]): Schedule[] {
 
 function canonicalGroup(group: GroupPlan, state: GroupState): GroupState {
   if (!group.exchangeable) return state;
+  let ordered = true;
+  for (let slot = 1; slot < group.channels.length && ordered; slot += 1) ordered = state[slot - 1] <= state[slot];
+  if (ordered) return state;
   const channels = state.slice(0, group.channels.length).sort((a, b) => a - b);
   return [...channels, state[group.channels.length], state[group.channels.length + 1]];
 }
