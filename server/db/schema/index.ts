@@ -4,3 +4,4 @@ export * from './sifs.js';
 export * from './sessions.js';
 export * from './models.js';
 export * from './solves.js';
+export * from './reviews.js';
