@@ -87,8 +87,8 @@ export function derivedFractions(rates: Pick<DeviceFields, 'lambdaDU' | 'lambdaD
   };
 }
 
-/** One stored version of a record: its figures, the derived fractions, who wrote it and why. */
-export const deviceVersion = deviceFields.extend({
+/** One stored version of a record: its figures, the derived fractions, who wrote it and why. (A reply, so not strict.) */
+export const deviceVersion = z.object(deviceFields.shape).extend({
   deviceId: recordId,
   version: z.number().int().min(1),
   diagnosticCoverage: z.number().nullable(),

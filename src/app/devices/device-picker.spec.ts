@@ -6,6 +6,7 @@ import { MatInputHarness } from '@angular/material/input/testing';
 import type { DeviceSummary } from '../../../shared/api/devices.js';
 import type { RateEvent } from '../../../shared/model-file.js';
 import { appTestProviders, settle } from '../testing/app-test-providers';
+import { formatTyped } from '../units/units';
 import { deviceSummaryFixture, deviceVersionFixture } from './device-fixtures';
 import { DeviceLinkPanel } from './device-link-panel';
 import { DevicePicker } from './device-picker';
@@ -82,7 +83,8 @@ describe('DeviceLinkPanel', () => {
     expect(element.querySelector('[data-field="lambdaDD"] .mark')!.textContent).toBe('linked');
     const changed = element.querySelector('[data-field="lambdaDU"]')!;
     expect(changed.className).toBe('state-unexplained');
-    expect(changed.textContent).toContain('differs from the library (4.00000e-8)');
+    // The panel shows values as the properties forms do (formatTyped of units.ts).
+    expect(changed.textContent).toContain(`differs from the library (${formatTyped(4e-8)})`);
 
     const keep = await loader.getHarness(MatButtonHarness.with({ selector: '.keep' }));
     await keep.click();
@@ -100,7 +102,7 @@ describe('DeviceLinkPanel', () => {
   it('shows a newer library version and updates the link to it, keeping overrides', async () => {
     const overridden: RateEvent = { ...EVENT, device: { id: V1.deviceId, version: 1, overrides: [{ field: 'lambdaDU', reason: 'Harsh service' }] } };
     const { emitted, element, loader } = await open(overridden);
-    expect(element.querySelector('[data-field="lambdaDU"] .mark')!.textContent).toContain('overridden (library 4.00000e-8): Harsh service');
+    expect(element.querySelector('[data-field="lambdaDU"] .mark')!.textContent).toContain(`overridden (library ${formatTyped(4e-8)}): Harsh service`);
     expect(element.querySelector('.newer')!.textContent).toContain('Library version 2 is available (Revised report rev B)');
     await (await loader.getHarness(MatButtonHarness.with({ selector: '.update' }))).click();
     expect(emitted).toHaveLength(1);
