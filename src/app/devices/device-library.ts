@@ -38,6 +38,8 @@ export class DeviceLibrary {
 
   readonly devices = this.listed.asReadonly();
   readonly access = this.allowed.asReadonly();
+  /** Where the browser downloads the library as CSV. */
+  readonly exportUrl = `${BASE}/export`;
 
   async loadAccess(): Promise<DeviceLibraryAccess> {
     const access = await parsed(`GET ${BASE}/access`, this.http.get(`${BASE}/access`), deviceLibraryAccess);
@@ -111,8 +113,6 @@ export class DeviceLibrary {
   evidenceUrl(deviceId: string, evidenceId: string): string {
     return `${deviceUrl(deviceId)}/evidence/${encodeURIComponent(evidenceId)}`;
   }
-
-  readonly exportUrl = `${BASE}/export`;
 
   private replace(saved: DeviceDetail): void {
     const summary = deviceSummary.parse(saved);
