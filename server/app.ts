@@ -18,6 +18,11 @@ import { devicesRouter } from './devices/devices-router.js';
 import { modelsRouter } from './models/models-router.js';
 import { solvesRouter, type SolvingDeps } from './solves/solves-router.js';
 import { usersRouter } from './users/users-router.js';
+import { annotationsRouter } from './annotations/annotations-router.js';
+import { auditRouter } from './audit/audit-router.js';
+import { mailRouter } from './mail/mail-router.js';
+import { createNotifier, type MailDeps } from './mail/notifier.js';
+import { reviewsRouter } from './reviews/reviews-router.js';
 
 export interface AppDeps {
   readonly db: Database;
@@ -35,6 +40,8 @@ export interface AppDeps {
   readonly signInLimit?: SignInLimit;
   /** Queue and notices of the solve service (server/solves/solving.ts); absent: no solve routes. */
   readonly solving?: SolvingDeps;
+  /** How review notices are mailed (server/mail/notifier.ts); absent: notices are not sent. */
+  readonly mail?: MailDeps | null;
 }
 
 const CONTENT_SECURITY_POLICY = {
@@ -89,6 +96,11 @@ export function createApp(deps: AppDeps): Express {
   api.use(devicesRouter(context));
   if (deps.solving) api.use(solvesRouter(context, deps.solving));
   api.use(reportsRouter(context));
+  const notifier = createNotifier(deps.db, logger, deps.mail ?? null);
+  api.use(reviewsRouter(context, notifier));
+  api.use(annotationsRouter(context, notifier));
+  api.use(auditRouter(context));
+  api.use(mailRouter(notifier));
 
   api.use(unknownApiRoute);
   app.use('/api', api);

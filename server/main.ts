@@ -9,6 +9,7 @@ import { consoleLogger as logger } from './logger.js';
 import { DEMO_USERS, seedDemoWorkspace } from './seed/demo-workspace.js';
 import { SOLVER_VERSION } from '../solver/index.js';
 import { solvingConfigFromEnv, startSolving } from './solves/solving.js';
+import { setUpMail } from './mail/mail-setup.js';
 
 // Wires config, database, migrations and the demo seed, then listens. Everything else is in createApp.
 async function main(): Promise<void> {
@@ -29,7 +30,8 @@ async function main(): Promise<void> {
     timeLimitMs: solvingConfig.timeLimitMs,
     solverThreads: solvingConfig.inProcessSolver ? solvingConfig.threads : 0,
   });
-  const app = createApp({ db, pool, sessionSecret, sessionStore, clientDir: config.clientDir, secureCookie: config.secureCookie, solving: solving.deps });
+  const mail = await setUpMail(process.env, logger);
+  const app = createApp({ db, pool, sessionSecret, sessionStore, clientDir: config.clientDir, secureCookie: config.secureCookie, solving: solving.deps, mail: mail.deps });
 
   const server = app.listen(config.port, config.host);
   await new Promise<void>((resolve, reject) => {
@@ -58,6 +60,7 @@ async function main(): Promise<void> {
     force.unref();
     server.close(() => {
       sessionStore.close();
+      void mail.close();
       solving
         .stop(3_000)
         .then(() => pool.end())

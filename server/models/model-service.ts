@@ -19,6 +19,7 @@ import { sifs } from '../db/schema/sifs.js';
 import { apiErrors } from '../errors.js';
 import { modelContentHash } from '../solves/content-hash.js';
 import { loadProjectAccess, type ProjectAccess } from '../projects/project-access.js';
+import { revisionIssued } from '../reviews/revision-issued.js';
 import { requireModelEditor } from './model-access.js';
 import { checkModelFile, requireModelFile } from './model-file-check.js';
 import { modelRepository, type ModelRepository } from './model-repository.js';
@@ -154,6 +155,7 @@ export function createModelService(db: Database) {
       if (outcome.kind === 'stale') return staleDraft(repository, modelId, body.draftVersion);
       const revision = await repository.findRevision(modelId, outcome.number);
       if (!revision) throw apiErrors.notFound('no such revision');
+      await revisionIssued(db, user, { projectId, sifId: model.sifId, modelId, modelName: model.name, number: revision.number, reason: body.reason });
       return revision;
     },
 

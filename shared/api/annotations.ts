@@ -51,6 +51,7 @@ export const annotationListQuery = z.object({
   severity: annotationSeverity.optional(),
 });
 export type AnnotationListQuery = z.input<typeof annotationListQuery>;
+export type AnnotationFilter = z.output<typeof annotationListQuery>;
 
 export const annotationReply = z.object({
   id: recordId,

@@ -82,6 +82,29 @@
  * POST   /api/devices/:deviceId/evidence        editor       multipart file (+description)  201 deviceDetail (PDF/PNG/JPEG by content, 10 MB: 413)
  * GET    /api/devices/:deviceId/evidence/:evidenceId  reader -                      200 the file (attachment, nosniff)
  * DELETE /api/devices/:deviceId/evidence/:evidenceId  editor -                      204
+ *
+ * Peer review (reviews.ts, annotations.ts, audit.ts). "Author" = who issued the revision or asked for its
+ * review: authors never review it. Reviewers (and leads) are chosen per round, annotate and decide; they
+ * cannot edit models. Viewers and site admins read. A round's decision moves the SIF: request -> in-review,
+ * approve -> approved, return -> draft; a new revision of an approved SIF's model makes it superseded.
+ * Approval is refused (409) while a must-fix annotation of the model is open.
+ * GET    /api/reviews/queue                               signed in      -                  200 reviewRoundList (open rounds I was chosen for)
+ * POST   /api/projects/:projectId/models/:modelId/reviews lead/engineer  requestReviewBody  201 reviewRound (one open round per model: 409)
+ * GET    /api/projects/:projectId/sifs/:sifId/reviews     member/admin   -                  200 reviewRoundList (newest first)
+ * GET    /api/projects/:projectId/reviews/:roundId        member/admin   -                  200 reviewRound
+ * POST   /api/projects/:projectId/reviews/:roundId/approve  chosen reviewer/lead, not author  decideReviewBody  200 reviewRound
+ * POST   /api/projects/:projectId/reviews/:roundId/return   chosen reviewer/lead, not author  returnReviewBody  200 reviewRound
+ * GET    /api/projects/:projectId/models/:modelId/diff    member/admin   revisionDiffQuery  200 revisionDiff
+ * GET    /api/projects/:projectId/models/:modelId/annotations  member/admin  annotationListQuery  200 annotationList
+ * POST   /api/projects/:projectId/models/:modelId/annotations  lead/engineer/reviewer  createAnnotationBody  201 annotation
+ * POST   /api/projects/:projectId/annotations/:annotationId/replies  lead/engineer/reviewer  replyBody  201 annotation
+ * POST   /api/projects/:projectId/annotations/:annotationId/resolve  lead/engineer/reviewer  -  200 annotation (already: 409)
+ * POST   /api/projects/:projectId/annotations/:annotationId/reopen   lead/engineer/reviewer  -  200 annotation (already: 409)
+ * GET    /api/projects/:projectId/audit                   member/admin   auditQuery         200 auditList (oldest first)
+ * GET    /api/projects/:projectId/audit/csv               member/admin   auditQuery         200 text/csv (attachment; formula cells escaped)
+ * GET    /api/admin/mail                                  admin          -                  200 sentMailList (newest first)
+ * GET    /api/me/notices                                  signed in      -                  200 noticeSettings
+ * PUT    /api/me/notices                                  signed in      noticeSettingsBody 200 noticeSettings
  */
 export * from './errors.js';
 export * from './common.js';
@@ -95,3 +118,6 @@ export * from './models.js';
 export * from './solves.js';
 export * from './results.js';
 export * from './devices.js';
+export * from './reviews.js';
+export * from './annotations.js';
+export * from './audit.js';
