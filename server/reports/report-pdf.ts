@@ -6,6 +6,7 @@ import { isProbabilityEvent, type FaultTreeModel } from '../../shared/model-file
 import { contributionsOf } from '../../solver/analysis/index.js';
 import type { ReportData } from './report-data.js';
 import { pfdChartSvg } from './report-chart.js';
+import { faultTreeSvg } from './report-tree.js';
 
 /** The Roboto fonts pdfmake ships (Apache License 2.0), read from its package: nothing from a network. */
 const FONT_DIR = path.join(path.dirname(createRequire(import.meta.url).resolve('pdfmake/package.json')), 'fonts', 'Roboto');
@@ -153,7 +154,16 @@ export function reportDefinition(data: ReportData, generatedAt: Date, generatedB
     { text: `${data.modelName} (${model.kind}), ${source}, content ${data.solve.contentHash.slice(0, 16)}`, style: 'body' },
   ];
   if (model.kind === 'fault-tree') {
-    content.push({ text: 'Model structure', style: 'subheading' }, treeOutline(model), { text: 'Parameters', style: 'subheading' }, ...parameterTable(model, source));
+    const picture = faultTreeSvg(model);
+    content.push(
+      { text: 'Model picture', style: 'subheading' },
+      { svg: picture.svg, width: Math.min(515, picture.width) },
+      ...(picture.truncated ? [{ text: 'The picture is cut at its width; the structure below lists every item.', style: 'note' } as Content] : []),
+      { text: 'Model structure', style: 'subheading' },
+      treeOutline(model),
+      { text: 'Parameters', style: 'subheading' },
+      ...parameterTable(model, source),
+    );
   } else {
     content.push({ text: `State model: ${model.states.length} states, ${model.transitions.length} transitions, ${(model.parts ?? []).length} independent parts.`, style: 'body' });
   }

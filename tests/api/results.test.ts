@@ -109,6 +109,7 @@ describe('results routes', () => {
     const pfdAvg = solved.result?.pfdAvg as number;
     for (const expected of [
       'Verification report',
+      'Model picture',
       'Separator high-pressure shutdown',
       pfdAvg.toExponential(2),
       'IEC 61508-2:2010 7.4.4.2',
