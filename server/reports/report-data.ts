@@ -1,4 +1,4 @@
-import { and, desc, eq } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import type { ResultAnalysis } from '../../shared/api/results.js';
 import type { Sif } from '../../shared/api/sifs.js';
 import { modelFile, type ModelFile } from '../../shared/model-file.js';
@@ -8,6 +8,7 @@ import { architecturalConstraints, silClaim, spuriousTripRate } from '../../solv
 import type { SessionUser } from '../auth/session-user.js';
 import type { Database } from '../db/client.js';
 import { modelRevisions, models } from '../db/schema/models.js';
+import { annotations, reviewRounds } from '../db/schema/reviews.js';
 import { sifs } from '../db/schema/sifs.js';
 import { solveResults, solves, type SolveRow } from '../db/schema/solves.js';
 import { users } from '../db/schema/users.js';
@@ -35,7 +36,32 @@ export interface ReportData {
   readonly revision: { number: number; issuedBy: string; issuedAt: Date; reason: string } | null;
   /** The latest succeeded solve of the same content per method (the solve itself included). */
   readonly methods: readonly MethodResult[];
+  /** Review rounds of the model (all revisions), oldest first, with names. */
+  readonly reviewRounds: readonly { revision: number; status: string; message: string; requestedBy: string; requestedAt: Date; decidedBy: string | null; decidedAt: Date | null; decisionComment: string }[];
+  /** Review comments (annotation threads) on the model, oldest first. */
+  readonly reviewComments: readonly { revision: number; severity: string; status: string; itemId: string | null; author: string; body: string }[];
   readonly analysis: ResultAnalysis;
+}
+
+async function reviewsOf(db: Database, modelId: string): Promise<Pick<ReportData, 'reviewRounds' | 'reviewComments'>> {
+  const rounds = await db.select().from(reviewRounds).where(eq(reviewRounds.modelId, modelId)).orderBy(asc(reviewRounds.requestedAt));
+  const comments = await db.select().from(annotations).where(eq(annotations.modelId, modelId)).orderBy(asc(annotations.createdAt));
+  const ids = [...new Set([...rounds.flatMap((round) => [round.requestedById, round.decidedById ?? round.requestedById]), ...comments.map((comment) => comment.authorId)])];
+  const names = new Map((ids.length > 0 ? await db.select({ id: users.id, name: users.displayName }).from(users).where(inArray(users.id, ids)) : []).map((row) => [row.id, row.name]));
+  const nameOf = (id: string) => names.get(id) ?? 'a former user';
+  return {
+    reviewRounds: rounds.map((round) => ({
+      revision: round.revision,
+      status: round.status,
+      message: round.message,
+      requestedBy: nameOf(round.requestedById),
+      requestedAt: round.requestedAt,
+      decidedBy: round.decidedById ? nameOf(round.decidedById) : null,
+      decidedAt: round.decidedAt,
+      decisionComment: round.decisionComment,
+    })),
+    reviewComments: comments.map((comment) => ({ revision: comment.revision, severity: comment.severity, status: comment.status, itemId: comment.itemId, author: nameOf(comment.authorId), body: comment.body })),
+  };
 }
 
 function measureText(result: SolveResult): string {
@@ -131,6 +157,7 @@ export async function loadReportData(db: Database, user: SessionUser, projectId:
     projectName: access.project.name,
     revision,
     methods,
+    ...(await reviewsOf(db, modelRow.id)),
     analysis: analyseResult(row.solve.id, modelRow.id, modelRow.name, sif, parsedModel.data, row.result, methods),
   };
 }

@@ -237,13 +237,34 @@ export function reportDefinition(data: ReportData, generatedAt: Date, generatedB
       [
         ['SIF record status', sif.status],
         ['Model revision', data.revision ? `revision ${data.revision.number}, issued by ${data.revision.issuedBy} on ${data.revision.issuedAt.toISOString().slice(0, 10)}: ${data.revision.reason}` : `draft version ${data.solve.draftVersion} (not an issued revision)`],
-        ['Review comments', 'none recorded with this result'],
         ['Solve', `${data.solve.id}, requested by ${data.requestedBy} on ${data.solve.createdAt.toISOString().slice(0, 16).replace('T', ' ')} UTC`],
         ['Solver', `version ${result.solverVersion}; ${result.algorithm}`],
         ['Report', `generated ${generatedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC by ${generatedBy}`],
       ],
       [110, '*'],
     ),
+    { text: 'Review rounds', style: 'subheading' },
+    data.reviewRounds.length > 0
+      ? table(
+          ['Revision', 'Status', 'Requested', 'Decided', 'Comment'],
+          data.reviewRounds.map((round) => [
+            String(round.revision),
+            round.status,
+            `${round.requestedBy}, ${round.requestedAt.toISOString().slice(0, 10)}: ${round.message}`,
+            round.decidedBy ? `${round.decidedBy}, ${round.decidedAt?.toISOString().slice(0, 10) ?? ''}` : '-',
+            round.decisionComment || '-',
+          ]),
+          [40, 45, '*', 90, 110],
+        )
+      : { text: 'No review round of this model has been requested.', style: 'body' },
+    { text: 'Review comments', style: 'subheading' },
+    data.reviewComments.length > 0
+      ? table(
+          ['Revision', 'Severity', 'Status', 'Item', 'Author', 'Comment'],
+          data.reviewComments.map((comment) => [String(comment.revision), comment.severity, comment.status, comment.itemId ?? 'whole model', comment.author, comment.body]),
+          [40, 45, 40, 60, 70, '*'],
+        )
+      : { text: 'No review comments on this model.', style: 'body' },
     { text: REPORT_CAUTION, style: 'caution', margin: [0, 12, 0, 0] },
   );
 

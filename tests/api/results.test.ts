@@ -6,6 +6,7 @@ import { resultAnalysis } from '../../shared/api/results.js';
 import { solve as solveSchema, type Solve } from '../../shared/api/solves.js';
 import type { FaultTreeModel } from '../../shared/model-file.js';
 import { DEMO_MODEL } from '../../server/seed/demo-model.js';
+import { annotations } from '../../server/db/schema/reviews.js';
 import { startSolving, type Solving } from '../../server/solves/solving.js';
 import { SOLVER_VERSION } from '../../solver/index.js';
 import { createTestApp, signedInAgent } from './helpers/test-app.js';
@@ -96,6 +97,17 @@ describe('results routes', () => {
 
   it('a reviewer downloads the verification PDF with the SIF, the results, the constraints and the caution', async () => {
     const solved = await solvedModel(await signedInAgent(app, 'engineer'));
+    await database.db.insert(annotations).values({
+      projectId: world.projectA,
+      sifId: world.sifDraft,
+      modelId: solved.modelId,
+      revision: 1,
+      targetKind: 'event',
+      itemId: 'XV-1101A',
+      severity: 'must-fix',
+      body: 'State the source of the valve rates.',
+      authorId: world.userId.reviewer,
+    });
     const reviewer = await signedInAgent(app, 'reviewer');
     const response = await reviewer.get(`${base(solved.id)}/report`).buffer(true).parse((res, callback) => {
       const chunks: Buffer[] = [];
@@ -119,6 +131,8 @@ describe('results routes', () => {
       'invented demo figure',
       `version ${SOLVER_VERSION}`,
       'does not replace competent judgement',
+      'must-fix open XV-1101A Reviewer (test) State the source of the valve rates.',
+      'No review round of this model has been requested.',
     ]) {
       expect(text).toContain(expected);
     }
