@@ -21,6 +21,10 @@ export function layoutGraph(model: EditableModel, view: CanvasView): ElkNode {
       'elk.spacing.nodeNode': '48',
       'elk.layered.spacing.nodeNodeBetweenLayers': '72',
       'elk.layered.crossingMinimization.strategy': 'LAYER_SWEEP',
+      // Fewer sweeps and the linear-time node placement: several times faster on a few hundred cards,
+      // with layouts that read as well for trees (measured with scripts/bench-canvas.ts).
+      'elk.layered.thoroughness': '2',
+      'elk.layered.nodePlacement.strategy': 'BRANDES_KOEPF',
       'elk.separateConnectedComponents': 'true',
     },
     children: view.nodes.map((node) => ({ id: node.id, ...CARD_SIZE })),
