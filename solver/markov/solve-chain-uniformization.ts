@@ -5,6 +5,27 @@ import { poissonWindow, type PoissonWindow } from './poisson-weights.js';
 
 /** Steady state: the iterates are taken as constant once one product changes them by less than this (L1). */
 const STEADY_STATE_TOLERANCE = 1e-15;
+/**
+ * Periodic regime: a segment of the same length and steps as the one before, starting (after its tests)
+ * from a distribution within this L1 distance of that one's start, repeats that segment's results. The
+ * distance allowed is this or, if larger, the rounding a phase itself makes (its products times 2^-52),
+ * below which two computed starts cannot be told apart.
+ */
+export const PERIODIC_TOLERANCE = 1e-14;
+
+/** What a computed segment gave, kept so that the next segment of the same shape can repeat it. */
+interface SegmentRecord {
+  readonly length: number;
+  readonly steps: number;
+  /** L1 distance within which a start counts as this record's start. */
+  readonly tolerance: number;
+  readonly start: Float64Array;
+  readonly end: Float64Array;
+  readonly firstPoint: number;
+  readonly pfdIntegral: number;
+  readonly frequencyIntegral: number;
+  readonly errorBound: number;
+}
 
 /**
  * Multi-phase transient solution by uniformization on the sparse generator (A. Jensen 1953; W. K. Grassmann,
@@ -14,6 +35,12 @@ const STEADY_STATE_TOLERANCE = 1e-15;
  * same iterates: integral_0^L p(s) ds = (1 / Lambda) sum_k v_k P(N(Lambda L) > k). The Poisson series are
  * truncated where their tails are below 1e-15 (bound reported); once an iterate stops changing (steady
  * state within a long segment) the remaining terms are summed in closed form.
+ *
+ * Periodic regime: a phase between tests starting, after its tests, within PERIODIC_TOLERANCE (L1) of the
+ * start of the previous phase of the same length repeats that phase's curve, integrals and end
+ * distribution instead of being propagated again. The propagator of a phase followed by its tests is a
+ * stochastic matrix, which does not enlarge L1 distances, so each repetition adds at most its measured
+ * distance to every later point's error; that drift times the segment length enters the stated bound.
  */
 export function solveChainUniformization(context: ChainSolveContext): ChainSolution {
   const { chain, schedule, chainIndex, keepStates, signal } = context;
@@ -37,6 +64,9 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
   let errorBound = 0;
   let products = 0;
   let steadyStates = 0;
+  let repeatedSegments = 0;
+  let drift = 0;
+  let record: SegmentRecord | undefined;
   let point = 0;
   const windowCache = new Map<string, PoissonWindow>();
   const windowFor = (mean: number) => {
@@ -53,6 +83,26 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
     throwIfAborted(signal);
     for (const test of schedule.testsAtStart[chainIndex][segmentIndex]) applyTest(test, distribution);
     const length = segment.end - segment.start;
+    if (record && record.steps === segment.steps && Math.abs(record.length - length) <= 1e-12 * length) {
+      const distance = l1Distance(distribution, record.start);
+      if (distance <= record.tolerance) {
+        drift += distance;
+        const span = segment.steps + 1;
+        pfd.copyWithin(point, record.firstPoint, record.firstPoint + span);
+        frequency.copyWithin(point, record.firstPoint, record.firstPoint + span);
+        if (states) for (const series of states) series.copyWithin(point, record.firstPoint, record.firstPoint + span);
+        pfdIntegral += record.pfdIntegral;
+        frequencyIntegral += record.frequencyIntegral;
+        errorBound += record.errorBound + drift * length;
+        distribution.set(record.end);
+        point += span;
+        repeatedSegments += 1;
+        context.progress((segmentIndex + 1) / schedule.segments.length);
+        return;
+      }
+    }
+    const start = Float64Array.from(distribution);
+    const integralsBefore = [pfdIntegral, frequencyIntegral, errorBound];
     const step = length / segment.steps;
     const windows = Array.from({ length: segment.steps }, (_, index) => windowFor(rate * step * (index + 1)));
     const last = windows[windows.length - 1];
@@ -137,6 +187,18 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
     }
     errorBound += last.truncation * length;
     distribution.set(segmentEnd);
+    record = {
+      length,
+      steps: segment.steps,
+      tolerance: Math.max(PERIODIC_TOLERANCE, terms * 2 ** -52),
+      start,
+      end: Float64Array.from(segmentEnd),
+      firstPoint,
+      pfdIntegral: pfdIntegral - integralsBefore[0],
+      frequencyIntegral: frequencyIntegral - integralsBefore[1],
+      errorBound: errorBound - integralsBefore[2],
+    };
+    errorBound += drift * length;
     context.progress((segmentIndex + 1) / schedule.segments.length);
   });
 
@@ -149,7 +211,8 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
     integralErrorBound: errorBound,
     algorithm:
       `uniformization on the sparse generator (rate ${formatRate(rate)} per hour, ${products} sparse products, ` +
-      `${steadyStates} of ${schedule.segments.length} segments ended by steady-state detection)`,
+      `${steadyStates} of ${schedule.segments.length} segments ended by steady-state detection, ` +
+      `${repeatedSegments} repeated the previous phase in the periodic regime)`,
   };
 }
 
