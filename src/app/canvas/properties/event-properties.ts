@@ -22,6 +22,7 @@ import {
   type IntervalUnit,
   type RateUnit,
 } from '../../units/units';
+import { DeviceLinkPanel } from '../../devices/device-link-panel';
 import { derivedFigures, formatPercent } from './derived-figures';
 import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId, formValueSignal } from './typed-number';
 
@@ -72,6 +73,7 @@ type EventForm = ReturnType<typeof buildForm>;
     MatCheckbox,
     MatButtonToggleGroup,
     MatButtonToggle,
+    DeviceLinkPanel,
   ],
   templateUrl: './event-properties.html',
   styleUrl: './properties.scss',
@@ -106,6 +108,11 @@ export class EventProperties {
   protected readonly rateUnitLabel = computed(() => RATE_UNIT_LABELS[this.value().rateUnit ?? 'perHour']);
   protected readonly intervalUnitLabel = computed(() => INTERVAL_UNIT_LABELS[this.value().intervalUnit ?? 'months']);
   protected readonly stored = signal<BasicEvent | null>(null);
+  /** The stored event when it has rates, for the device-library link. */
+  protected readonly rateEvent = computed(() => {
+    const event = this.stored();
+    return event && !('probability' in event) ? event : null;
+  });
   protected readonly derived = computed(() => {
     const event = this.stored();
     if (!event || 'probability' in event) return null;
@@ -249,9 +256,17 @@ export class EventProperties {
       ...optional('mttrHours', mttr ?? undefined),
       ...optional('proofTest', proofTest),
       ...optional('partialTest', partialTest),
+      ...keptFields(this.event()),
     };
     return event;
   }
+}
+
+/** Fields of a rate event this form does not edit (library link, device type, SC, error factor, source): kept as they are. */
+function keptFields(event: BasicEvent): Partial<RateEvent> {
+  if ('probability' in event) return {};
+  const { deviceType, systematicCapability, errorFactor, source, device } = event;
+  return Object.fromEntries(Object.entries({ deviceType, systematicCapability, errorFactor, source, device }).filter(([, value]) => value !== undefined));
 }
 
 function percentText(fraction: number | undefined): string {
