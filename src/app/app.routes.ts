@@ -93,6 +93,22 @@ export const routes: Routes = [
         loadComponent: () => import('./admin/user-admin-page').then((m) => m.UserAdminPage),
       },
       {
+        path: 'reviews',
+        title: 'Reviews · Proofline',
+        loadComponent: () => import('./review/review-queue').then((m) => m.ReviewQueue),
+      },
+      {
+        path: 'projects/:projectId/audit',
+        title: 'Audit trail · Proofline',
+        loadComponent: () => import('./review/audit-page').then((m) => m.AuditPage),
+      },
+      {
+        path: 'admin/mail',
+        title: 'Sent mail · Proofline',
+        canActivate: [adminGuard],
+        loadComponent: () => import('./review/sent-mail-page').then((m) => m.SentMailPage),
+      },
+      {
         path: 'about',
         title: 'About · Proofline',
         loadComponent: () => import('./shell/about').then((m) => m.About),

@@ -20,6 +20,7 @@ import { FileIssuesDialog, type FileIssues } from './file-issues-dialog';
 import { IssueRevisionDialog } from './issue-revision-dialog';
 import { ModelRecords } from './model-records';
 import { SolveRunner } from './solve-runner';
+import { ReviewPanel } from '../review/review-panel';
 
 const SAVE_STATE_TEXT = {
   saved: 'All changes saved',
@@ -35,7 +36,7 @@ const SAVE_STATE_TEXT = {
  */
 @Component({
   selector: 'pl-model-editor',
-  imports: [ModelCanvas, RouterLink, MatButton, MatIcon, MatProgressBar],
+  imports: [ModelCanvas, ReviewPanel, RouterLink, MatButton, MatIcon, MatProgressBar],
   providers: [DraftStore, SolveRunner],
   templateUrl: './model-editor.html',
   styleUrl: './model-editor.scss',
