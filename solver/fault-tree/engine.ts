@@ -1,6 +1,6 @@
 import type { FaultTreeModel } from '../../shared/model-file.js';
 import { throwIfAborted } from '../common/abort.js';
-import { integrateAdaptive, type PartitionRule } from '../common/quadrature.js';
+import { integrateAdaptive, kronrodOnPartition, type PartitionRule } from '../common/quadrature.js';
 import { curveTimes } from '../common/time-grid.js';
 import { buildTree, type BuiltTree } from './build.js';
 import { cutSetBounds, type CutSetBoundOptions, type CutSetBounds } from './cut-set-bounds.js';
@@ -27,6 +27,24 @@ export interface ItemAverages {
   readonly birnbaum: Float64Array;
   /** Time integral of q_v times Birnbaum importance, per model variable. */
   readonly qTimesBirnbaum: Float64Array;
+}
+
+/** Called per batch of a pass over quadrature times; start is the batch's first index (0 starts a pass). */
+export type CutSetBatchCallback = (q: Float64Array, count: number, weights: Float64Array, start: number) => void;
+
+export interface FrequencyAndImportance {
+  readonly pfh: number;
+  readonly relativeError: number;
+  /** PFDavg on the same partition and its Kronrod-Gauss error estimate, relative. */
+  readonly pfdAvg: number;
+  readonly pfdRelativeError: number;
+  readonly averages: ItemAverages;
+}
+
+export interface EngineAverages extends FrequencyAndImportance {
+  /** The partition the values were integrated on, and its Kronrod rule. */
+  readonly partition: Float64Array;
+  readonly rule: PartitionRule;
 }
 
 /**
@@ -129,18 +147,17 @@ export class FaultTreeEngine {
    * and one backward pass per batch. The top's failure frequency is sum_v B_v(t) w_v(t), the failure
    * frequency of a coherent structure of independent components (Rausand & Hoyland, System Reliability
    * Theory, 2nd ed., chapter on system reliability, from memory).
+   * The same passes give P(top) at the partition's times, so PFDavg on this partition comes with it.
    * @param onCutSetBatch called per batch with the q matrix (one row per timeline, see rowOf), the batch
-   *   length and the weights.
+   *   length, the weights and the index of the batch's first time (0 starts a pass).
    */
-  frequencyAndImportance(
-    rule: PartitionRule,
-    onCutSetBatch?: (q: Float64Array, count: number, weights: Float64Array) => void,
-  ): { pfh: number; relativeError: number; averages: ItemAverages } {
+  frequencyAndImportance(rule: PartitionRule, onCutSetBatch?: CutSetBatchCallback): FrequencyAndImportance {
     const { times, weights } = rule;
     const variableCount = this.variables.variables.length;
     const birnbaumIntegral = new Float64Array(variableCount);
     const qTimesBirnbaumIntegral = new Float64Array(variableCount);
     const frequency = new Float64Array(times.length);
+    const top = new Float64Array(times.length);
     const size = this.diagram.size;
     const batch = Math.max(8, Math.floor(this.batch / 2));
     const values = new Float64Array(size * batch);
@@ -151,7 +168,7 @@ export class FaultTreeEngine {
       const slice = times.subarray(start, start + count);
       const { q, w } = variableMatrix(this.variables.rows, slice, true);
       const frequencyMatrix = w as Float64Array;
-      forwardPass(this.diagram, q, count, values);
+      top.set(forwardPass(this.diagram, q, count, values), start);
       const birnbaum = new Float64Array(variableCount * count);
       backwardPass(this.diagram, q, count, values, reach, birnbaum);
       const rowOf = this.variables.rowOf;
@@ -171,14 +188,37 @@ export class FaultTreeEngine {
         birnbaumIntegral[v] += sumB;
         qTimesBirnbaumIntegral[v] += sumQB;
       }
-      onCutSetBatch?.(q, count, weights.subarray(start, start + count));
+      onCutSetBatch?.(q, count, weights.subarray(start, start + count), start);
     }
     const integral = rule.integrate(frequency);
+    const unavailability = rule.integrate(top);
     return {
       pfh: integral.integral / this.missionHours,
       relativeError: integral.integral > 0 ? integral.errorEstimate / integral.integral : 0,
+      pfdAvg: unavailability.integral / this.missionHours,
+      pfdRelativeError: unavailability.integral > 0 ? unavailability.errorEstimate / unavailability.integral : 0,
       averages: { birnbaum: birnbaumIntegral, qTimesBirnbaum: qTimesBirnbaumIntegral },
     };
+  }
+
+  /**
+   * PFDavg, PFH and every variable's importance integrals, sharing one evaluation where it can: the
+   * starting partition's Kronrod times get one q matrix, one forward and one backward pass. When that
+   * partition's Kronrod-Gauss estimate of PFDavg already meets QUADRATURE_TOLERANCE (the test with which
+   * integrateAdaptive stops after its first round), the result is the one of pfdAverage() followed by
+   * frequencyAndImportance() on its partition, at half the evaluations; otherwise those two run.
+   * @param onCutSetBatch as for frequencyAndImportance; a batch with start 0 begins a new pass.
+   */
+  averages(onCutSetBatch?: CutSetBatchCallback): EngineAverages {
+    const rule = kronrodOnPartition(this.quadratureEdges);
+    const shared = this.frequencyAndImportance(rule, onCutSetBatch);
+    if (shared.pfdRelativeError <= QUADRATURE_TOLERANCE) {
+      return { ...shared, partition: this.quadratureEdges, rule };
+    }
+    const average = this.pfdAverage();
+    const refined = kronrodOnPartition(average.partition);
+    const frequency = this.frequencyAndImportance(refined, onCutSetBatch);
+    return { ...frequency, pfdAvg: average.pfdAvg, pfdRelativeError: average.relativeError, partition: average.partition, rule: refined };
   }
 
   /** PFH by its own adaptive integral, for when the PFDavg partition does not reach the tolerance. */
@@ -209,7 +249,6 @@ export class FaultTreeEngine {
     return { pfh: result.integral / this.missionHours, relativeError: result.integral > 0 ? result.errorEstimate / result.integral : 0 };
   }
 
-  /** Minimal cut sets of the top event as lists of variable indices (see cut-sets.ts). */
   /** Minimal cut sets through the gates, dropping sets whose product of values is below the cutoff. */
   cutSets(values: Float64Array, options: CutSetBoundOptions = {}): CutSetBounds {
     return cutSetBounds(this.model, this.variables, values, options);

@@ -2,7 +2,6 @@ import type { FaultTreeModel } from '../../shared/model-file.js';
 import { silReached } from '../../shared/sil.js';
 import type { SolveResult } from '../../shared/solve-result.js';
 import { throwIfAborted } from '../common/abort.js';
-import { kronrodOnPartition } from '../common/quadrature.js';
 import type { SolveOptions } from '../solve-options.js';
 import { simplifiedValues } from '../formulas/match.js';
 import { BddNodeLimitError } from './bdd.js';
@@ -30,6 +29,14 @@ export interface FaultTreeSolveOptions extends SolveOptions {
   readonly nodeLimit?: number;
   /** Budget of node evaluations. Default DIAGRAM_WORK_LIMIT. */
   readonly workLimit?: number;
+}
+
+/** Mean of a piecewise linear curve over its span (repeated times, a curve's jumps, add nothing). */
+function trapezoidMean(hours: Float64Array, values: Float64Array): number {
+  let integral = 0;
+  for (let i = 0; i + 1 < hours.length; i++) integral += ((hours[i + 1] - hours[i]) * (values[i] + values[i + 1])) / 2;
+  const span = hours[hours.length - 1] - hours[0];
+  return span > 0 ? integral / span : values[0];
 }
 
 /**
@@ -62,16 +69,12 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
   let pfdMax = 0;
   for (const value of curve.pfd) pfdMax = Math.max(pfdMax, value);
 
-  progress(0.35, 'integrating PFDavg');
-  const average = engine.pfdAverage();
-  if (average.relativeError > STATED_ERROR_BOUND) {
-    warnings.push(`the PFDavg integral reached a relative error estimate of ${average.relativeError.toExponential(1)} only`);
-  }
-
-  progress(0.55, 'computing PFH, importance and cut sets');
-  const rule = kronrodOnPartition(average.partition);
+  progress(0.35, 'listing minimal cut sets');
+  // The cut-set cutoff needs a PFDavg before the exact one: the curve's trapezoid mean is close enough for
+  // a listing threshold, and lets the quadrature times be evaluated once for PFDavg, PFH and importance.
+  const curveMean = trapezoidMean(curve.hours, curve.pfd);
   const means = engine.meanUnavailability();
-  const enumerated = engine.cutSets(means, { cutoff: Math.max(1e-300, CUT_SET_CUTOFF * average.pfdAvg) });
+  const enumerated = engine.cutSets(means, { cutoff: Math.max(1e-300, CUT_SET_CUTOFF * curveMean) });
   if (enumerated.truncated) {
     warnings.push(`minimal cut sets above order ${enumerated.maxOrder} or with a product of mean unavailabilities below ${enumerated.cutoff.toExponential(1)} are not listed`);
   }
@@ -82,9 +85,13 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
   const cutSets = { sets: ranked.slice(0, CUT_SETS_INTEGRATED).map((item) => item.set) };
   const cutSetIntegrals = new Float64Array(cutSets.sets.length);
   const rowOf = engine.variables.rowOf;
-  const frequency = engine.frequencyAndImportance(rule, (q, count, weights) => {
-    for (let index = 0; index < cutSets.sets.length; index++) {
-      const rows = Int32Array.from(cutSets.sets[index], (variable) => rowOf[variable] * count);
+  const cutSetRows = cutSets.sets.map((set) => Int32Array.from(set, (variable) => rowOf[variable]));
+
+  progress(0.5, 'integrating PFDavg, PFH and importance');
+  const frequency = engine.averages((q, count, weights, start) => {
+    if (start === 0) cutSetIntegrals.fill(0);
+    for (let index = 0; index < cutSetRows.length; index++) {
+      const rows = Int32Array.from(cutSetRows[index], (row) => row * count);
       let sum = 0;
       for (let j = 0; j < count; j++) {
         let product = weights[j];
@@ -94,6 +101,11 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
       cutSetIntegrals[index] += sum;
     }
   });
+  const average = { pfdAvg: frequency.pfdAvg, relativeError: frequency.pfdRelativeError, partition: frequency.partition };
+  if (average.relativeError > STATED_ERROR_BOUND) {
+    warnings.push(`the PFDavg integral reached a relative error estimate of ${average.relativeError.toExponential(1)} only`);
+  }
+  const rule = frequency.rule;
   let pfh = frequency.pfh;
   let pfhError = frequency.relativeError;
   if (pfhError > STATED_ERROR_BOUND) {
