@@ -2,6 +2,7 @@ import { ChangeDetectionStrategy, Component, ErrorHandler, effect, inject, input
 import { ReactiveFormsModule } from '@angular/forms';
 import { MatButton, MatIconButton } from '@angular/material/button';
 import { MatCheckbox } from '@angular/material/checkbox';
+import { MatDialog } from '@angular/material/dialog';
 import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
@@ -9,13 +10,15 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
 import { architecture } from '../../../shared/architecture.js';
 import { formatPath } from '../../../shared/model-file.js';
+import type { DeviceSummary } from '../../../shared/api/devices.js';
 import type { Sif } from '../../../shared/api/sifs.js';
 import { generateModels } from '../../../solver/generator/index.js';
-import { numberMessage } from '../canvas/properties/typed-number';
+import { numberMessage, readControl } from '../canvas/properties/typed-number';
+import { DevicePickerDialog, type DevicePickerDialogData } from '../devices/device-picker-dialog';
 import { ModelRecords } from '../models/model-records';
 import { SifRecords } from '../register/sif-records';
 import { INTERVAL_UNITS, INTERVAL_UNIT_LABELS, RATE_UNITS, RATE_UNIT_LABELS } from '../units/units';
-import { SUBSYSTEM_ROLE_LABELS, architectureFromForm, buildSubsystemForm, buildWizardForm, type SubsystemRole, type WizardForm } from './wizard-form';
+import { SUBSYSTEM_ROLE_LABELS, applyDevice, architectureFromForm, buildSubsystemForm, buildWizardForm, type SubsystemForm, type SubsystemRole, type WizardForm } from './wizard-form';
 
 /**
  * The architecture wizard: subsystems (sensors, logic, final elements) in series, each with its voting,
@@ -49,6 +52,7 @@ export class ArchitectureWizard {
   private readonly sifs = inject(SifRecords);
   private readonly router = inject(Router);
   private readonly errorHandler = inject(ErrorHandler);
+  private readonly dialog = inject(MatDialog);
 
   readonly projectId = input.required<string>();
   readonly sifId = input.required<string>();
@@ -90,6 +94,18 @@ export class ArchitectureWizard {
     let number = 1;
     while (taken.has(`${prefix}${number}`)) number++;
     subsystems.push(buildSubsystemForm(role, `${prefix}${number}`));
+  }
+
+  /** Fills the subsystem's device from a library record (figures copied; the repair time stays as typed). */
+  protected pickDevice(subsystem: SubsystemForm): void {
+    this.dialog
+      .open<DevicePickerDialog, DevicePickerDialogData, DeviceSummary>(DevicePickerDialog, { data: { linkedId: null }, width: '720px', maxWidth: '95vw' })
+      .afterClosed()
+      .subscribe((device) => {
+        if (!device) return;
+        const label = `${device.maker} ${device.model} (library v${device.version})`.slice(0, 200);
+        applyDevice(subsystem, { label, lambdaDU: device.lambdaDU, lambdaDD: device.lambdaDD, mttrHours: readControl(subsystem.controls.mttrHours) ?? 8 });
+      });
   }
 
   protected removeSubsystem(index: number): void {
