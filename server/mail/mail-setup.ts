@@ -14,7 +14,7 @@ export interface MailSetup {
 /**
  * Mail from the environment: SMTP_HOST (with SMTP_PORT, default 587; SMTP_SECURE=true for TLS on connect;
  * SMTP_USER / SMTP_PASSWORD) sends through that host. Without SMTP_HOST, outside production, a local SMTP
- * fake on 127.0.0.1:SMTP_FAKE_PORT (default 2525) receives everything; in production SMTP_HOST is required.
+ * fake on 127.0.0.1:SMTP_FAKE_PORT (default: a free port, so several servers never clash) receives everything; in production SMTP_HOST is required.
  * MAIL_FROM (default "Proofline <proofline@localhost>") and MAIL_DOMAIN (users' addresses are
  * username@MAIL_DOMAIN, default "localhost").
  */
@@ -30,7 +30,8 @@ export async function setUpMail(env: NodeJS.ProcessEnv, logger: Logger): Promise
     return { deps: { transport, from, domain }, fake: null, close: async () => transport.close() };
   }
   if (env.NODE_ENV === 'production') throw new ConfigError('SMTP_HOST must be set in production (the local mail fake is for development only)');
-  const fakePortText = env.SMTP_FAKE_PORT ?? '2525';
+  const fakePortText = env.SMTP_FAKE_PORT ?? '0';
+  if (!/^\d+$/.test(fakePortText) || Number(fakePortText) > 65_535) throw new ConfigError(`SMTP_FAKE_PORT must be a port number 0-65535 (got "${fakePortText}")`);
   const fake = await startSmtpFake(Number(fakePortText));
   const transport = nodemailer.createTransport({ host: '127.0.0.1', port: fake.port, secure: false, ignoreTLS: true });
   logger.info(`Mail goes to the local SMTP fake on 127.0.0.1:${fake.port} (set SMTP_HOST for a real one); the admin's Sent mail page lists it.`);
