@@ -2,7 +2,7 @@ import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
 import type { ModelFile } from '../../shared/model-file.js';
 import type { SolveSettings } from '../../shared/api/solves.js';
-import type { SolveTask, TaskMessage } from './solve-task.js';
+import type { SolveTask, SolveTaskOutput, TaskMessage } from './solve-task.js';
 
 export interface SolvePoolOptions {
   /** Worker threads, each running one solve at a time. */
@@ -22,8 +22,8 @@ export interface SolveRunOptions {
 
 export interface SolvePool {
   readonly threads: number;
-  /** Resolves with what the solver returned (unchecked); rejects with the solver's error or the abort. */
-  run(model: ModelFile, settings: SolveSettings, options: SolveRunOptions): Promise<unknown>;
+  /** Resolves with the checked result as JSON; rejects with the solver's error or the abort. */
+  run(model: ModelFile, settings: SolveSettings, options: SolveRunOptions): Promise<SolveTaskOutput>;
   close(): Promise<void>;
 }
 
@@ -40,7 +40,7 @@ function workerFile(): { filename: string; execArgv: string[] | undefined } {
 /** A fixed pool of worker threads that run the solver; a thread that crashes is replaced by piscina. */
 export function createSolvePool(options: SolvePoolOptions): SolvePool {
   const { filename, execArgv } = workerFile();
-  const piscina = new Piscina<SolveTask, unknown>({
+  const piscina = new Piscina<SolveTask, SolveTaskOutput>({
     filename,
     execArgv,
     minThreads: options.threads,

@@ -1,7 +1,7 @@
 import { setPriority } from 'node:os';
 import type { MessagePort } from 'node:worker_threads';
 import type { ModelFile } from '../../shared/model-file.js';
-import type { SolveResult } from '../../shared/solve-result.js';
+import { solveResult } from '../../shared/solve-result.js';
 import type { SolveSettings } from '../../shared/api/solves.js';
 import { solveModel } from '../../solver/index.js';
 import { runTestFault, testFaultOf } from './test-faults.js';
@@ -13,6 +13,15 @@ export interface SolveTask {
   readonly allowTestFaults: boolean;
   /** Receives a `started` message, then `progress` messages; closed when the task ends. */
   readonly progressPort: MessagePort;
+}
+
+/**
+ * A checked result as the worker hands it over: JSON text, so that the request thread neither clones nor
+ * checks nor serialises the large result object (that work would delay requests while many solves end).
+ */
+export interface SolveTaskOutput {
+  readonly solverVersion: string;
+  readonly resultJson: string;
 }
 
 /** Messages from the worker thread to the pool: once `started`, then `progress` at most every 100 ms. */
@@ -46,14 +55,19 @@ function progressReporter(port: MessagePort) {
  * Worker-thread entry of the solve pool (piscina): runs the solver on one model. The numerics run here,
  * never on the thread that serves requests; an abort from the pool ends the whole thread.
  */
-export default function solveTask(task: SolveTask): SolveResult {
+export default function solveTask(task: SolveTask): SolveTaskOutput {
   const started: TaskMessage = { kind: 'started' };
   task.progressPort.postMessage(started);
   const report = progressReporter(task.progressPort);
   try {
     const fault = task.allowTestFaults ? testFaultOf(task.model) : undefined;
     const onProgress = fault ? runTestFault(fault, report) : report;
-    return solveModel(task.model, { ...task.settings, onProgress });
+    const parsed = solveResult.safeParse(solveModel(task.model, { ...task.settings, onProgress }));
+    if (!parsed.success) {
+      const first = parsed.error.issues[0];
+      throw new Error(`its result does not match the result schema (${first?.path.join('.') || 'result'}: ${first?.message ?? 'invalid'})`);
+    }
+    return { solverVersion: parsed.data.solverVersion, resultJson: JSON.stringify(parsed.data) };
   } finally {
     task.progressPort.close();
   }

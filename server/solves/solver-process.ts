@@ -4,12 +4,12 @@ import { and, eq, inArray, lt, notInArray, sql } from 'drizzle-orm';
 import type pg from 'pg';
 import type { Database } from '../db/client.js';
 import type { ModelFile } from '../../shared/model-file.js';
-import { solveResult } from '../../shared/solve-result.js';
 import { solveResults, solves } from '../db/schema/solves.js';
 import { startSolveQueue, type SolveJob, type SolveQueue } from '../queue/solve-queue.js';
 import { resultCacheKey } from './content-hash.js';
 import { connectSolveEvents, type SolveEvents } from './solve-events.js';
 import { createSolvePool, type SolvePool } from './solve-pool.js';
+import type { SolveTaskOutput } from './solve-task.js';
 
 export interface SolverProcessOptions {
   readonly db: Database;
@@ -132,7 +132,7 @@ export async function startSolverProcess(options: SolverProcessOptions): Promise
       const onStarted = () => {
         timer ??= setTimeout(() => controller.abort(TIME_LIMIT), timeLimitMs);
       };
-      let output: unknown;
+      let output: SolveTaskOutput;
       try {
         output = await pool.run(claimed.model as ModelFile, claimed.settings, { signal: controller.signal, onStarted, onProgress });
       } catch (error) {
@@ -146,23 +146,14 @@ export async function startSolverProcess(options: SolverProcessOptions): Promise
         clearTimeout(timer);
       }
 
-      const parsed = solveResult.safeParse(output);
-      if (!parsed.success) {
-        const first = parsed.error.issues[0];
-        await finish(solveId, {
-          status: 'failed',
-          error: `the solver returned a result that does not match the result schema (${first?.path.join('.') || 'result'}: ${first?.message ?? 'invalid'})`,
-        });
-        return;
-      }
-      const result = parsed.data;
-      const cacheKey = resultCacheKey(claimed.contentHash, result.solverVersion, claimed.settings);
+      const { solverVersion, resultJson } = output;
+      const cacheKey = resultCacheKey(claimed.contentHash, solverVersion, claimed.settings);
       await db
         .insert(solveResults)
-        .values({ cacheKey, contentHash: claimed.contentHash, solverVersion: result.solverVersion, settings: claimed.settings, result })
+        .values({ cacheKey, contentHash: claimed.contentHash, solverVersion, settings: claimed.settings, result: sql`${resultJson}::jsonb` })
         .onConflictDoNothing({ target: solveResults.cacheKey });
       const [stored] = await db.select({ id: solveResults.id }).from(solveResults).where(eq(solveResults.cacheKey, cacheKey));
-      await finish(solveId, { status: 'succeeded', progress: 1, stage: 'done', resultId: stored?.id, solverVersion: result.solverVersion });
+      await finish(solveId, { status: 'succeeded', progress: 1, stage: 'done', resultId: stored?.id, solverVersion });
     } finally {
       running.delete(solveId);
     }
