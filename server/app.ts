@@ -23,6 +23,7 @@ import { auditRouter } from './audit/audit-router.js';
 import { mailRouter } from './mail/mail-router.js';
 import { createNotifier, type MailDeps } from './mail/notifier.js';
 import { reviewsRouter } from './reviews/reviews-router.js';
+import { refuseCrossSiteChanges } from './security/cross-site-requests.js';
 
 export interface AppDeps {
   readonly db: Database;
@@ -70,6 +71,7 @@ export function createApp(deps: AppDeps): Express {
   app.use(helmet({ contentSecurityPolicy: CONTENT_SECURITY_POLICY, strictTransportSecurity: deps.secureCookie === true }));
 
   const api = express.Router();
+  api.use(refuseCrossSiteChanges);
   api.use(express.json({ limit: '1mb' }));
   api.use((_req, res, next) => {
     res.setHeader('Cache-Control', 'no-store');
