@@ -41,7 +41,8 @@ export interface MarkovSolveOptions extends SolveOptions {
  *
  * Each chain (the main chain and each independent part) is solved with the method of the lower cost
  * estimate: dense Pade-13 propagators per distinct step (small and medium chains) or uniformization on
- * the sparse generator (large chains). Parts are combined as a series of independent subsystems:
+ * the sparse generator (large chains), which repeats a test phase instead of propagating it again once the
+ * distribution after the tests matches the previous phase's start (periodic regime). Parts are combined as a series of independent subsystems:
  * PFD = 1 - prod(1 - PFD_k), w = sum_k w_k prod_(j != k) (1 - PFD_j) (Rausand & Hoyland, System
  * Reliability Theory, 2nd ed., ch. 4 and 5: series structures of independent components). The first-order
  * sums integrate exactly; only the small cross terms are integrated by Simpson's rule on a grid of half
