@@ -4,7 +4,7 @@ import { integrateAdaptive, kronrodOnPartition, type PartitionRule } from '../co
 import { curveTimes } from '../common/time-grid.js';
 import { buildTree, type BuiltTree } from './build.js';
 import { cutSetBounds, type CutSetBoundOptions, type CutSetBounds } from './cut-set-bounds.js';
-import { backwardPass, flatten, forwardPass, variableMatrix, type FlatDiagram } from './evaluate.js';
+import { backwardIntegrals, backwardPass, flatten, forwardPass, variableMatrix, type FlatDiagram } from './evaluate.js';
 import type { EventTimeline } from '../events/event-timeline.js';
 import { compileVariables, type TreeVariables } from './variables.js';
 
@@ -167,28 +167,10 @@ export class FaultTreeEngine {
       const count = Math.min(batch, times.length - start);
       const slice = times.subarray(start, start + count);
       const { q, w } = variableMatrix(this.variables.rows, slice, true);
-      const frequencyMatrix = w as Float64Array;
       top.set(forwardPass(this.diagram, q, count, values), start);
-      const birnbaum = new Float64Array(variableCount * count);
-      backwardPass(this.diagram, q, count, values, reach, birnbaum);
-      const rowOf = this.variables.rowOf;
-      for (let v = 0; v < variableCount; v++) {
-        const at = v * count;
-        const row = rowOf[v] * count;
-        let sumB = 0;
-        let sumQB = 0;
-        for (let j = 0; j < count; j++) {
-          const b = birnbaum[at + j];
-          if (b === 0) continue;
-          const weight = weights[start + j];
-          sumB += weight * b;
-          sumQB += weight * b * q[row + j];
-          frequency[start + j] += b * frequencyMatrix[row + j];
-        }
-        birnbaumIntegral[v] += sumB;
-        qTimesBirnbaumIntegral[v] += sumQB;
-      }
-      onCutSetBatch?.(q, count, weights.subarray(start, start + count), start);
+      const batchWeights = weights.subarray(start, start + count);
+      backwardIntegrals(this.diagram, q, w as Float64Array, count, values, reach, batchWeights, birnbaumIntegral, qTimesBirnbaumIntegral, frequency.subarray(start, start + count));
+      onCutSetBatch?.(q, count, batchWeights, start);
     }
     const integral = rule.integrate(frequency);
     const unavailability = rule.integrate(top);

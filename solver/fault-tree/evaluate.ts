@@ -105,3 +105,51 @@ export function backwardPass(
     }
   }
 }
+
+/**
+ * The backward pass of backwardPass() with its results integrated on the fly over a batch of quadrature
+ * times: adds sum_j weight_j B_v(t_j) and sum_j weight_j q_v(t_j) B_v(t_j) to each variable's integrals,
+ * and B_v(t_j) w_v(t_j) to the top's failure frequency at t_j (Rausand & Hoyland, System Reliability
+ * Theory, 2nd ed., chapter on system reliability, from memory). Every term is non-negative for a coherent
+ * tree, so summing per node instead of per variable changes the totals by rounding only.
+ * @param reach scratch of size * count doubles.
+ * @param frequency out, count doubles, added to.
+ */
+export function backwardIntegrals(
+  diagram: FlatDiagram,
+  q: Float64Array,
+  w: Float64Array,
+  count: number,
+  values: Float64Array,
+  reach: Float64Array,
+  weights: Float64Array,
+  birnbaumIntegral: Float64Array,
+  qTimesBirnbaumIntegral: Float64Array,
+  frequency: Float64Array,
+): void {
+  const { variable, row, low, high } = diagram;
+  reach.fill(0, 0, diagram.size * count);
+  reach.fill(1, diagram.root * count, diagram.root * count + count);
+  for (let node = diagram.size - 1; node >= 2; node--) {
+    const at = node * count;
+    const lowAt = low[node] * count;
+    const highAt = high[node] * count;
+    const qAt = row[node] * count;
+    let sumB = 0;
+    let sumQB = 0;
+    for (let j = 0; j < count; j++) {
+      const r = reach[at + j];
+      if (r === 0) continue;
+      const qj = q[qAt + j];
+      reach[highAt + j] += r * qj;
+      reach[lowAt + j] += r * (1 - qj);
+      const b = r * (values[highAt + j] - values[lowAt + j]);
+      const weighted = weights[j] * b;
+      sumB += weighted;
+      sumQB += weighted * qj;
+      frequency[j] += b * w[qAt + j];
+    }
+    birnbaumIntegral[variable[node]] += sumB;
+    qTimesBirnbaumIntegral[variable[node]] += sumQB;
+  }
+}
