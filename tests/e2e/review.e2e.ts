@@ -1,0 +1,148 @@
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { launchChromium, newSignedOutPage, screenshot, watchForPageErrors } from './browser.js';
+
+// The seeded demo workspace (server/seed/demo-workspace.ts): its engineer and reviewer in the terminal project.
+const ENGINEER = { username: 'engineer', password: 'proofline-engineer' };
+const REVIEWER = { username: 'reviewer', password: 'proofline-reviewer' };
+const ADMIN = { username: 'admin', password: 'proofline-admin' };
+const DEMO_PROJECT = 'Brackwater Point Gas Terminal: export compression';
+
+/** An invented 1oo2 pair of pressure switches on a fictional scrubber (rates per hour). */
+const MODEL = {
+  format: 'proofline/model',
+  version: 1,
+  name: 'Scrubber S-410 high pressure, 1oo2',
+  kind: 'fault-tree',
+  mission: { hours: 87_600, demand: 'low' },
+  events: [
+    { id: 'PSH-A', label: 'Pressure switch A', lambdaDU: 2.0e-7, proofTest: { intervalHours: 8760 } },
+    { id: 'PSH-B', label: 'Pressure switch B', lambdaDU: 2.0e-7, proofTest: { intervalHours: 8760 } },
+  ],
+  gates: [{ id: 'TOP', label: 'Both switches fail', type: 'and', inputs: ['PSH-A', 'PSH-B'] }],
+  top: 'TOP',
+  layout: { TOP: { x: 200, y: 40 }, 'PSH-A': { x: 80, y: 200 }, 'PSH-B': { x: 320, y: 200 } },
+};
+
+async function signIn(page: Page, user: { username: string; password: string }): Promise<void> {
+  await page.goto(`${inject('baseUrl')}/projects`);
+  await page.waitForURL(/\/sign-in/);
+  await page.getByLabel('Username').fill(user.username);
+  await page.getByLabel('Password').fill(user.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  try {
+    await page.waitForURL(/\/projects$/);
+  } catch (error) {
+    await screenshot(page, `review-sign-in-${user.username}`);
+    throw error;
+  }
+}
+
+async function api<T>(page: Page, method: 'get' | 'post', path: string, data?: unknown): Promise<T> {
+  const response = method === 'get' ? await page.request.get(`${inject('baseUrl')}${path}`) : await page.request.post(`${inject('baseUrl')}${path}`, { data });
+  if (!response.ok()) throw new Error(`${method} ${path}: ${response.status()} ${await response.text()}`);
+  return (await response.json()) as T;
+}
+
+describe('peer review in the browser', () => {
+  let browser: Browser;
+  const contexts: BrowserContext[] = [];
+
+  beforeAll(async () => {
+    browser = await launchChromium();
+  });
+
+  afterAll(async () => {
+    for (const context of contexts) await context.close();
+    await browser?.close();
+  });
+
+  async function open(user: { username: string; password: string }): Promise<{ page: Page; errors: string[] }> {
+    const { context, page } = await newSignedOutPage(browser);
+    contexts.push(context);
+    const errors = watchForPageErrors(page);
+    await signIn(page, user);
+    return { page, errors };
+  }
+
+  it('the engineer requests review, the reviewer annotates a gate and returns it, the engineer resolves and re-issues, the reviewer approves', async () => {
+    const engineer = await open(ENGINEER);
+    // Own SIF and model, so the test neither depends on nor changes what other tests use.
+    const projects = await api<{ id: string; name: string }[]>(engineer.page, 'get', '/api/projects');
+    const project = projects.find((item) => item.name === DEMO_PROJECT)!;
+    expect(project).toBeDefined();
+    const tag = `PSZ-${Date.now() % 100_000}`;
+    const sif = await api<{ id: string }>(engineer.page, 'post', `/api/projects/${project.id}/sifs`, {
+      tag,
+      title: 'Scrubber high pressure trip',
+      hazardousEvent: 'Overpressure of the scrubber.',
+      demandMode: 'low',
+      target: { kind: 'sil', value: 2 },
+      demandRatePerYear: 0.1,
+      missionHours: 87_600,
+    });
+    const model = await api<{ id: string; draftVersion: number }>(engineer.page, 'post', `/api/projects/${project.id}/sifs/${sif.id}/models`, { file: MODEL });
+    await api(engineer.page, 'post', `/api/projects/${project.id}/models/${model.id}/revisions`, { draftVersion: model.draftVersion, reason: 'First issue' });
+    const editorUrl = `${inject('baseUrl')}/projects/${project.id}/sifs/${sif.id}/models/${model.id}`;
+
+    // 1. The engineer asks the reviewer for a review.
+    await engineer.page.goto(editorUrl);
+    const request = engineer.page.getByRole('form', { name: 'Request review' });
+    await request.getByLabel(/Rhea Reviewer/).check();
+    await request.getByLabel('Message').fill('Please check the voting of the two switches.');
+    await request.getByRole('button', { name: 'Request review' }).click();
+    await expect.poll(() => engineer.page.locator('[data-review-round]').getAttribute('data-status')).toBe('open');
+
+    // 2. The reviewer finds it in the queue, annotates gate TOP (must fix) and returns the revision.
+    const reviewer = await open(REVIEWER);
+    await reviewer.page.goto(`${inject('baseUrl')}/reviews`);
+    await reviewer.page.locator('[data-queue-round]').filter({ hasText: tag }).getByRole('link').click();
+    await reviewer.page.waitForURL(/\/models\//);
+    const annotate = reviewer.page.getByRole('form', { name: 'New annotation' });
+    await annotate.getByLabel('Pin to').selectOption('gate:TOP');
+    await annotate.getByLabel('Severity').selectOption('must-fix');
+    await annotate.getByLabel('Comment').fill('No common-cause group on the two switches.');
+    await annotate.getByRole('button', { name: 'Add annotation' }).click();
+    await reviewer.page.locator('[data-annotation="TOP"][data-status="open"]').waitFor();
+    await reviewer.page.locator('[data-annotation="TOP"] .thread-head').click();
+    await screenshot(reviewer.page, 'review-annotated');
+    await reviewer.page.getByLabel('Decision comment').fill('See the must-fix on TOP.');
+    await reviewer.page.getByRole('button', { name: 'Return with comments' }).click();
+    await expect.poll(() => reviewer.page.locator('[data-review-round]').getAttribute('data-status')).toBe('returned');
+
+    // 3. The engineer resolves the thread, issues revision 2 and asks again.
+    await engineer.page.reload();
+    await engineer.page.locator('[data-annotation="TOP"] .thread-head').click();
+    await engineer.page.locator('[data-annotation="TOP"]').getByRole('button', { name: 'Resolve' }).click();
+    await engineer.page.locator('[data-annotation="TOP"][data-status="resolved"]').waitFor();
+    await engineer.page.getByRole('button', { name: 'Issue revision' }).click();
+    await engineer.page.getByLabel('Reason for the revision').fill('Answer to the review');
+    await engineer.page.getByRole('dialog').getByRole('button', { name: 'Issue revision' }).click();
+    const again = engineer.page.getByRole('form', { name: 'Request review' });
+    await again.getByText('Ask for a review of revision 2').waitFor();
+    await again.getByLabel(/Rhea Reviewer/).check();
+    await again.getByRole('button', { name: 'Request review' }).click();
+    await expect.poll(() => engineer.page.locator('[data-review-round]').getAttribute('data-status')).toBe('open');
+
+    // 4. The reviewer approves revision 2.
+    await reviewer.page.reload();
+    await reviewer.page.getByRole('button', { name: 'Approve' }).click();
+    await expect.poll(() => reviewer.page.locator('[data-review-round]').getAttribute('data-status')).toBe('approved');
+    const status = await api<{ status: string }>(reviewer.page, 'get', `/api/projects/${project.id}/sifs/${sif.id}`);
+    expect(status.status).toBe('approved');
+
+    // 5. The mail fake took the three kinds of notice (the admin's list shows each one as accepted).
+    const admin = await open(ADMIN);
+    await admin.page.goto(`${inject('baseUrl')}/admin/mail`);
+    const rows = admin.page.locator('[data-sent-mail]').filter({ hasText: tag });
+    await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(4);
+    const texts = await rows.allInnerTexts();
+    expect(texts.filter((text) => text.includes('review-requested') && text.includes('reviewer@'))).toHaveLength(2);
+    expect(texts.filter((text) => text.includes('review-returned') && text.includes('engineer@'))).toHaveLength(1);
+    expect(texts.filter((text) => text.includes('review-approved') && text.includes('engineer@'))).toHaveLength(1);
+    expect(texts.every((text) => text.includes('accepted'))).toBe(true);
+    await screenshot(admin.page, 'review-sent-mail');
+
+    expect([...engineer.errors, ...reviewer.errors, ...admin.errors]).toEqual([]);
+  });
+});
