@@ -3,6 +3,7 @@ import {
   Component,
   ErrorHandler,
   computed,
+  DestroyRef,
   effect,
   inject,
   input,
@@ -101,8 +102,10 @@ export class ModelCanvas {
   private clipboard: Clipboard | null = null;
   private rendered = false;
   private autoLaidOut = false;
+  private destroyed = false;
 
   constructor() {
+    inject(DestroyRef).onDestroy(() => (this.destroyed = true));
     // A model without stored positions (imported, generated) is laid out once, as soon as it is shown.
     effect(() => {
       if (this.view().needsLayout && !this.readOnly() && !this.autoLaidOut && this.view().nodes.length > 0) {
@@ -311,7 +314,7 @@ export class ModelCanvas {
       const current = this.model();
       const positions = layoutFromElk(view, laidOut);
       this.edit.emit(withLayout(current, automatic ? { ...positions, ...(current.layout ?? {}) } : { ...(current.layout ?? {}), ...positions }));
-      requestAnimationFrame(() => this.fit());
+      this.afterFrame(() => this.fit());
     } catch (error) {
       this.errorHandler.handleError(error);
     } finally {
@@ -319,10 +322,17 @@ export class ModelCanvas {
     }
   }
 
+  /** Runs after the next frame unless the canvas is gone by then (reading its view children would throw). */
+  private afterFrame(action: () => void): void {
+    requestAnimationFrame(() => {
+      if (!this.destroyed) action();
+    });
+  }
+
   private selectLater(nodes: readonly string[], connections: readonly string[]): void {
     this.selectedNodes.set(nodes);
     this.selectedConnections.set(connections);
-    requestAnimationFrame(() => this.flow()?.select([...nodes], [...connections]));
+    this.afterFrame(() => this.flow()?.select([...nodes], [...connections]));
   }
 
   private tell(message: string): void {
