@@ -44,6 +44,8 @@ export async function openReviewWorld(): Promise<Omit<ReviewWorld, 'world'>> {
 export async function resetReviewWorld(context: Omit<ReviewWorld, 'world'>): Promise<World> {
   await resetDatabase(context.database.db);
   await context.database.db.execute(sql`delete from mail_messages`);
+  // Stored results belong to no project; the diff test's own are keyed review-test-*.
+  await context.database.db.execute(sql`delete from solve_results where cache_key like 'review-test-%'`);
   (context.smtp.received as unknown[]).length = 0;
   return seedWorld(context.database.db);
 }

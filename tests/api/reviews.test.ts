@@ -3,6 +3,8 @@ import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { reviewRound, reviewRoundList, revisionDiff } from '../../shared/api/reviews.js';
 import { sentMailList } from '../../shared/api/audit.js';
 import { sifs } from '../../server/db/schema/sifs.js';
+import { solveResults, solves } from '../../server/db/schema/solves.js';
+import type { SolveResult } from '../../shared/solve-result.js';
 import { signedInAgent } from './helpers/test-app.js';
 import type { World } from './helpers/world.js';
 import { issuedModel, issueNext, openReviewWorld, receivedAtLeast, resetReviewWorld, transmitterPair, type ReviewWorld } from './reviews-helpers.js';
@@ -210,5 +212,46 @@ describe('revision diff', () => {
     expect(missing.status).toBe(400);
     expect(missing.body.error.details.issues).toEqual([{ path: 'to', message: 'the model has no revision 9' }]);
     expect((await (await signedInAgent(context.app, 'outsider')).get(`/api/projects/${world.projectA}/models/${modelId}/diff?from=1&to=2`)).status).toBe(404);
+  });
+
+  it('compares the stored results of both revisions, the latest succeeded solve of each', async () => {
+    const { modelId } = await issuedModel(context.app, world);
+    await issueNext(context.app, world, modelId, transmitterPair(4.0e-7));
+    const db = context.database.db;
+    // Invented figures: only their pass-through old -> new is checked here, not their value.
+    const storeResult = async (revision: number, pfdAvg: number, sil: 1 | 2) => {
+      const result = { pfdAvg, pfdMax: pfdAvg * 2, pfh: pfdAvg / 8760, rrf: 1 / pfdAvg, sil } as unknown as SolveResult;
+      const [stored] = await db
+        .insert(solveResults)
+        .values({ cacheKey: `review-test-${revision}-${pfdAvg}`, contentHash: 'h', solverVersion: 'test', settings: {} as never, result })
+        .returning();
+      await db.insert(solves).values({
+        projectId: world.projectA,
+        modelId,
+        revisionNumber: revision,
+        model: {},
+        contentHash: 'h',
+        solverVersion: 'test',
+        settings: {} as never,
+        status: 'succeeded',
+        progress: 1,
+        resultId: stored!.id,
+        requestedById: world.userId.engineer,
+        finishedAt: new Date(Date.now() + pfdAvg),
+      });
+    };
+    await storeResult(1, 1.0e-3, 2);
+    const oneSided = revisionDiff.parse((await (await signedInAgent(context.app, 'viewer')).get(`/api/projects/${world.projectA}/models/${modelId}/diff?from=1&to=2`)).body);
+    expect(oneSided.results).toBeNull();
+    await storeResult(2, 2.0e-3, 2);
+    await storeResult(2, 4.0e-2, 1);
+    const diff = revisionDiff.parse((await (await signedInAgent(context.app, 'viewer')).get(`/api/projects/${world.projectA}/models/${modelId}/diff?from=1&to=2`)).body);
+    expect(diff.results).toEqual([
+      { figure: 'pfdAvg', old: 1.0e-3, new: 4.0e-2 },
+      { figure: 'pfdMax', old: 2.0e-3, new: 8.0e-2 },
+      { figure: 'pfh', old: 1.0e-3 / 8760, new: 4.0e-2 / 8760 },
+      { figure: 'rrf', old: 1 / 1.0e-3, new: 1 / 4.0e-2 },
+      { figure: 'sil', old: 2, new: 1 },
+    ]);
   });
 });
