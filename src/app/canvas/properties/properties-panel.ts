@@ -55,7 +55,7 @@ type Selected =
   template: `
     <h2>{{ heading() }}</h2>
     @if (issues().length > 0) {
-      <ul class="issues" role="alert" aria-label="Problems of this item">
+      <ul class="issues" aria-live="assertive" aria-label="Problems of this item">
         @for (issue of issues(); track $index) {
           <li>{{ issue }}</li>
         }
