@@ -32,6 +32,7 @@ export interface ItemAverages {
 /** Called per batch of a pass over quadrature times; start is the batch's first index (0 starts a pass). */
 export type CutSetBatchCallback = (q: Float64Array, count: number, weights: Float64Array, start: number) => void;
 
+/** PFH, PFDavg and the importance integrals of one pass over a partition's Kronrod times. */
 export interface FrequencyAndImportance {
   readonly pfh: number;
   readonly relativeError: number;
@@ -41,6 +42,7 @@ export interface FrequencyAndImportance {
   readonly averages: ItemAverages;
 }
 
+/** What averages() returns: the pass's results and the partition they were integrated on. */
 export interface EngineAverages extends FrequencyAndImportance {
   /** The partition the values were integrated on, and its Kronrod rule. */
   readonly partition: Float64Array;
