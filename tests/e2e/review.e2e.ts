@@ -87,6 +87,7 @@ describe('peer review in the browser', () => {
 
     // 1. The engineer asks the reviewer for a review.
     await engineer.page.goto(editorUrl);
+    await engineer.page.getByRole('button', { name: 'Review', exact: true }).click();
     const request = engineer.page.getByRole('form', { name: 'Request review' });
     await request.getByLabel(/Rhea Reviewer/).check();
     await request.getByLabel('Message').fill('Please check the voting of the two switches.');
@@ -98,6 +99,7 @@ describe('peer review in the browser', () => {
     await reviewer.page.goto(`${inject('baseUrl')}/reviews`);
     await reviewer.page.locator('[data-queue-round]').filter({ hasText: tag }).getByRole('link').click();
     await reviewer.page.waitForURL(/\/models\//);
+    await reviewer.page.getByRole('button', { name: 'Review', exact: true }).click();
     const annotate = reviewer.page.getByRole('form', { name: 'New annotation' });
     await annotate.getByLabel('Pin to').selectOption('gate:TOP');
     await annotate.getByLabel('Severity').selectOption('must-fix');
@@ -112,6 +114,7 @@ describe('peer review in the browser', () => {
 
     // 3. The engineer resolves the thread, issues revision 2 and asks again.
     await engineer.page.reload();
+    await engineer.page.getByRole('button', { name: /^Review/ }).click();
     await engineer.page.locator('[data-annotation="TOP"] .thread-head').click();
     await engineer.page.locator('[data-annotation="TOP"]').getByRole('button', { name: 'Resolve' }).click();
     await engineer.page.locator('[data-annotation="TOP"][data-status="resolved"]').waitFor();
@@ -126,6 +129,7 @@ describe('peer review in the browser', () => {
 
     // 4. The reviewer approves revision 2.
     await reviewer.page.reload();
+    await reviewer.page.getByRole('button', { name: /^Review/ }).click();
     await reviewer.page.getByRole('button', { name: 'Approve' }).click();
     await expect.poll(() => reviewer.page.locator('[data-review-round]').getAttribute('data-status')).toBe('approved');
     const status = await api<{ status: string }>(reviewer.page, 'get', `/api/projects/${project.id}/sifs/${sif.id}`);

@@ -94,6 +94,8 @@ describe('ReviewPanel', () => {
       id: '00000000-0000-4000-8000-0000000000c1', modelId: MODEL, number: 2, contentHash: 'h', reason: 'r', issuedAt: AT, issuedById: ENGINEER, issuedByDisplayName: 'Ezra', content: FILE,
     });
     await settle(fixture);
+    (fixture.nativeElement as HTMLElement).querySelector<HTMLButtonElement>('.review-toggle')!.click();
+    await settle(fixture);
     return { fixture, element: fixture.nativeElement as HTMLElement };
   }
 

@@ -34,7 +34,7 @@ const show = (value: unknown) => (value === undefined ? '—' : typeof value ===
   selector: 'pl-review-panel',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [MatButton, RouterLink],
-  host: { class: 'review-panel', 'aria-label': 'Review', role: 'complementary' },
+  host: { class: 'review-panel', 'aria-label': 'Review', role: 'complementary', '[class.expanded]': 'expanded()' },
   templateUrl: './review-panel.html',
   styleUrl: './review-panel.scss',
 })
@@ -63,6 +63,9 @@ export class ReviewPanel {
   protected readonly openThread = signal<string | null>(null);
   protected readonly diff = signal<RevisionDiff | null>(null);
   protected readonly busy = signal(false);
+  /** Folded to a small button over the canvas until asked for, so the drawing keeps its width. */
+  protected readonly expanded = signal(false);
+  protected readonly openThreads = computed(() => this.threads().filter((thread) => thread.status === 'open').length);
   protected readonly message = signal<string | null>(null);
 
   private readonly me = computed(() => this.session.user()?.id ?? null);
