@@ -39,7 +39,6 @@ const STATE_MODEL_ENTRIES: readonly PaletteEntry[] = [
             [fData]="entry.kind"
             [disabled]="disabled()"
             [attr.data-palette]="entry.kind"
-            [attr.aria-label]="'Add ' + entry.title + ' ' + entry.hint"
             (click)="add.emit(entry.kind)"
           >
             <span class="entry-inner">
