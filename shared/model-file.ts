@@ -424,10 +424,9 @@ export const faultTreeModel = withIssues(faultTreeModelShape, faultTreeIssues);
 export const markovModel = withIssues(markovModelShape, markovIssues);
 
 /** A whole model file, either kind, with every reference check applied. */
-export const modelFile = z.discriminatedUnion('kind', [faultTreeModelShape, markovModelShape]).superRefine((model, context) => {
-  const issues = model.kind === 'fault-tree' ? faultTreeIssues(model) : markovIssues(model);
-  for (const issue of issues) context.addIssue({ code: 'custom', path: issue.path, message: issue.message });
-});
+export const modelFile = withIssues(z.discriminatedUnion('kind', [faultTreeModelShape, markovModelShape]), (model) =>
+  model.kind === 'fault-tree' ? faultTreeIssues(model) : markovIssues(model),
+);
 
 export type FaultTreeModel = z.infer<typeof faultTreeModelShape>;
 export type MarkovModel = z.infer<typeof markovModelShape>;
