@@ -7,6 +7,11 @@ set -euo pipefail
 
 db_checkout_dir() { cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd; }
 
+# A number derived from the checkout path: names the cluster folder and picks the port.
+db_checkout_key() { printf '%s' "$(db_checkout_dir)" | cksum | cut -d' ' -f1; }
+
+db_cluster_dir() { echo "${PROOFLINE_DB_DIR:-/var/tmp/proofline-db-$(db_checkout_key)}"; }
+
 db_find_bin() {
   local dir
   for dir in /usr/lib/postgresql/*/bin; do
@@ -33,12 +38,11 @@ db_as_owner() {
 
 db_start() {
   db_install_if_missing
-  local bin checkout key port base data password_file
+  local bin key port base data password_file
   bin="$(db_find_bin)"
-  checkout="$(db_checkout_dir)"
-  key="$(printf '%s' "$checkout" | cksum | cut -d' ' -f1)"
+  key="$(db_checkout_key)"
   port="${PROOFLINE_DB_PORT:-$((54000 + key % 900))}"
-  base="${PROOFLINE_DB_DIR:-/var/tmp/proofline-db-$key}"
+  base="$(db_cluster_dir)"
   data="$base/data"
   password_file="$base/password"
   mkdir -p "$base"
@@ -76,10 +80,8 @@ db_start() {
 }
 
 db_stop() {
-  local bin checkout key base
+  local bin base
   bin="$(db_find_bin)"
-  checkout="$(db_checkout_dir)"
-  key="$(printf '%s' "$checkout" | cksum | cut -d' ' -f1)"
-  base="${PROOFLINE_DB_DIR:-/var/tmp/proofline-db-$key}"
+  base="$(db_cluster_dir)"
   db_as_owner "$bin/pg_ctl" -D "$base/data" -m fast stop
 }
