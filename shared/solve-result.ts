@@ -9,6 +9,12 @@ import { silLevel } from './sil.js';
 export const curve = z.object({
   hours: z.array(z.number()),
   pfd: z.array(z.number()),
+  /**
+   * The function's dangerous failure frequency w(t), per hour, at each of `hours` (fault tree: the sum of
+   * each event's Birnbaum importance times its failure frequency; Markov: the probability flow from up
+   * states into down states). Its time average is `pfh`. Absent when the engine does not compute it.
+   */
+  frequency: z.array(z.number()).optional(),
 });
 
 export const simplifiedValue = z.object({
