@@ -1,3 +1,4 @@
+import { and, eq, isNotNull } from 'drizzle-orm';
 import type { z } from 'zod';
 import { FROZEN_SIF_STATUSES, SIF_STATUS_TRANSITIONS, canChangeStatus } from '../../shared/api/permissions.js';
 import { deriveSifTarget, sifRequirementIssues, type SifTarget } from '../../shared/api/sif-target.js';
@@ -5,6 +6,7 @@ import type { Sif, SifPage, SifStatus, createSifBody, sifListQuery, updateSifBod
 import type { SessionUser } from '../auth/session-user.js';
 import type { Database } from '../db/client.js';
 import { uniqueViolation } from '../db/client.js';
+import { models } from '../db/schema/models.js';
 import { apiErrors } from '../errors.js';
 import { MembersRepository } from '../members/members-repository.js';
 import { can, loadProjectAccess, requireAction, requireActiveProject, roleForbids, type ProjectAccess } from '../projects/project-access.js';
@@ -100,6 +102,7 @@ export class SifsService {
 
     const nextStatus = status ?? current.status;
     this.checkStatusChange(access, current.status, nextStatus);
+    if (nextStatus === 'approved' && current.status !== 'approved') await this.refuseApprovalOfIssuedModels(current.tag, sifId);
 
     const merged = {
       tag: fields.tag ?? current.tag,
@@ -157,6 +160,21 @@ export class SifsService {
     if (exists) throw roleForbids(access, `change the status from ${from} to ${to}`);
     const allowed = SIF_STATUS_TRANSITIONS.filter((transition) => transition.from === from).map((transition) => transition.to);
     throw apiErrors.invalidField('status', `cannot change from ${from} to ${to}; from ${from} it may go to ${[...new Set(allowed)].join(', ')}`);
+  }
+
+  /**
+   * A SIF whose model has an issued revision is approved only by a review round on that revision, where the
+   * chosen reviewer decides and the revision's authors may not; setting the status here would skip both.
+   */
+  private async refuseApprovalOfIssuedModels(tag: string, sifId: string): Promise<void> {
+    const [issued] = await this.db
+      .select({ name: models.name })
+      .from(models)
+      .where(and(eq(models.sifId, sifId), isNotNull(models.latestRevision)))
+      .limit(1);
+    if (issued) {
+      throw apiErrors.conflict(`SIF ${tag} has an issued revision of model "${issued.name}": it is approved through a review round of that revision (the model's Review panel), not by setting its status`);
+    }
   }
 
   /** The owner must be a lead or engineer of the project: the person who answers for the record. */

@@ -19,6 +19,8 @@
  * - permissions.ts holds the table (canDo, canChangeStatus). Approved and superseded SIFs are frozen:
  *   changing their content needs status draft in the same PATCH (409 conflict otherwise). Archived SIFs
  *   and SIFs of archived projects refuse changes (409 conflict) until restored with archived=false.
+ * - A SIF whose model has an issued revision is approved only by a review round (409 conflict on
+ *   PATCH status=approved), where authors of the revision cannot decide.
  *
  * Routes                                                body / query            response
  * POST   /api/auth/sign-in                              signInBody              200 user (new session)
