@@ -1,4 +1,5 @@
 import type { ValidationIssue } from '../../../shared/api/errors.js';
+import { itemKey, transitionId } from '../../../shared/model-diff.js';
 import { formatInterval, formatRate } from '../units/units';
 import { gateLogicInWords, votingLabel } from './gate-logic';
 import {
@@ -40,6 +41,8 @@ export interface CanvasConnection {
   readonly label?: string;
   readonly tint?: number;
   readonly issues: readonly string[];
+  /** A transition's item key as review annotations name it (shared/model-diff), for its pin marker. */
+  readonly pinKey?: string;
 }
 
 export interface CanvasView {
@@ -182,6 +185,7 @@ export function canvasView(model: EditableModel, issues: readonly ValidationIssu
           variant: 'transition',
           label: `${transition.label ? `${transition.label} ` : ''}${formatRate(transition.rate)}`,
           issues: byItem.get(id) ?? [],
+          pinKey: itemKey('transition', transitionId(transition.from, transition.to, part)),
         });
       });
     }

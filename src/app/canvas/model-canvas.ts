@@ -46,6 +46,7 @@ import {
   type EditableModel,
   type PaletteKind,
 } from './model-graph';
+import { PinMarker } from '../review/pin-marker';
 import { Palette } from './palette';
 import { PropertiesPanel, type PanelEdit } from './properties/properties-panel';
 
@@ -60,7 +61,7 @@ const PASTE_OFFSET = { x: 40, y: 40 };
  */
 @Component({
   selector: 'pl-model-canvas',
-  imports: [FFlowModule, Palette, PropertiesPanel, MatIconButton, MatIcon, MatTooltip],
+  imports: [FFlowModule, Palette, PinMarker, PropertiesPanel, MatIconButton, MatIcon, MatTooltip],
   templateUrl: './model-canvas.html',
   styleUrl: './model-canvas.scss',
   host: { '(document:keydown)': 'onKeydown($event)' },

@@ -7,6 +7,7 @@ import { SessionStore } from '../auth/session-store';
 import { CanvasFocus } from '../canvas/canvas-focus';
 import { appTestProviders, settle } from '../testing/app-test-providers';
 import { ReviewPanel } from './review-panel';
+import { ReviewPins } from './review-pins';
 
 const PROJECT = '00000000-0000-4000-8000-000000000001';
 const SIF = '00000000-0000-4000-8000-000000000002';
@@ -111,6 +112,24 @@ describe('ReviewPanel', () => {
     expect(TestBed.inject(CanvasFocus).highlighted()).toEqual(['TOP']);
     const pins = [...element.querySelectorAll('select[name="pin"] option')].map((option) => option.textContent);
     expect(pins).toEqual(['The whole model', 'event LS-A', 'event LS-B', 'gate TOP', 'result PFDavg', 'result PFD(t) chart']);
+  });
+
+  it('publishes its threads as canvas pins, opens the thread of a clicked pin, and takes the pins away when closed', async () => {
+    const { fixture, element } = await render(ENGINEER, [thread({})]);
+    const pins = TestBed.inject(ReviewPins);
+    expect(pins.pins().get('gate:TOP')).toMatchObject({ count: 1, severity: 'must-fix' });
+    (element.querySelector('.review-toggle') as HTMLButtonElement).click();
+    await settle(fixture);
+    expect(element.querySelector('[data-annotation]')).toBeNull();
+    pins.open('gate:TOP');
+    await settle(fixture);
+    const opened = element.querySelector('[data-annotation="TOP"]')!;
+    expect(opened.classList).toContain('open');
+    expect(opened.querySelector('button[type="button"]')).not.toBeNull();
+    expect([...opened.querySelectorAll('button')].map((button) => button.textContent?.trim())).toContain('Resolve');
+    expect(TestBed.inject(CanvasFocus).highlighted()).toEqual(['TOP']);
+    fixture.destroy();
+    expect(pins.pins().size).toBe(0);
   });
 
   it('offers approve and return to a chosen reviewer, not to the author who asked', async () => {

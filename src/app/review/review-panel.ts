@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, ErrorHandler, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, ErrorHandler, Injector, afterNextRender, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { RouterLink } from '@angular/router';
 import { ANNOTATION_SEVERITIES, type Annotation, type AnnotationSeverity, type AnnotationStatus, type AnnotationTargetKind } from '../../../shared/api/annotations.js';
@@ -9,6 +9,7 @@ import { modelFile } from '../../../shared/model-file.js';
 import { SessionStore } from '../auth/session-store';
 import { CanvasFocus } from '../canvas/canvas-focus';
 import { ReviewDesk } from './review-desk';
+import { ReviewPins } from './review-pins';
 
 interface PinOption {
   readonly key: string;
@@ -42,7 +43,10 @@ export class ReviewPanel {
   private readonly desk = inject(ReviewDesk);
   private readonly session = inject(SessionStore);
   private readonly focus = inject(CanvasFocus);
+  private readonly pins = inject(ReviewPins);
   private readonly errorHandler = inject(ErrorHandler);
+  private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
+  private readonly injector = inject(Injector);
 
   readonly projectId = input.required<string>();
   readonly sifId = input.required<string>();
@@ -85,6 +89,23 @@ export class ReviewPanel {
       const keys = [this.projectId(), this.sifId(), this.modelId(), this.latestRevision(), this.statusFilter(), this.severityFilter()] as const;
       untracked(() => void this.reload(keys[0], keys[1], keys[2]));
     });
+    // The threads shown here are the pins on the canvas (with the same filters); a click on a pin opens its thread.
+    effect(() => this.pins.show(this.threads()));
+    effect(() => {
+      const request = this.pins.requested();
+      if (request) untracked(() => this.openFromPin(request.threadId));
+    });
+    inject(DestroyRef).onDestroy(() => this.pins.clear());
+  }
+
+  private openFromPin(threadId: string): void {
+    const thread = this.threads().find((candidate) => candidate.id === threadId);
+    if (!thread) return;
+    this.expanded.set(true);
+    this.openThread.set(threadId);
+    const id = canvasId(thread.target.kind, thread.target.itemId);
+    if (id) this.focus.highlight([id]);
+    afterNextRender(() => this.host.nativeElement.querySelector(`[data-thread-id="${threadId}"]`)?.scrollIntoView({ block: 'nearest' }), { injector: this.injector });
   }
 
   private async reload(projectId: string, sifId: string, modelId: string): Promise<void> {
