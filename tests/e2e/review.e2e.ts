@@ -1,5 +1,6 @@
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import type { ReceivedMail } from '../../server/mail/smtp-fake.js';
 import { launchChromium, newSignedOutPage, screenshot, watchForPageErrors } from './browser.js';
 
 // The seeded demo workspace (server/seed/demo-workspace.ts): its engineer and reviewer in the terminal project.
@@ -106,18 +107,22 @@ describe('peer review in the browser', () => {
     await annotate.getByLabel('Comment').fill('No common-cause group on the two switches.');
     await annotate.getByRole('button', { name: 'Add annotation' }).click();
     await reviewer.page.locator('[data-annotation="TOP"][data-status="open"]').waitFor();
-    await reviewer.page.locator('[data-annotation="TOP"] .thread-head').click();
+    // The gate carries a pin marker on the canvas: one thread, coloured by the open must-fix.
+    const pin = reviewer.page.locator('[data-node="gate:TOP"] [data-pin="gate:TOP"]');
+    await expect.poll(() => pin.getAttribute('data-severity')).toBe('must-fix');
+    expect((await pin.innerText()).trim()).toBe('1');
+    await expect.poll(() => reviewer.page.locator('[data-pin]').count()).toBe(1);
     await screenshot(reviewer.page, 'review-annotated');
     await reviewer.page.getByLabel('Decision comment').fill('See the must-fix on TOP.');
     await reviewer.page.getByRole('button', { name: 'Return with comments' }).click();
     await expect.poll(() => reviewer.page.locator('[data-review-round]').getAttribute('data-status')).toBe('returned');
 
-    // 3. The engineer resolves the thread, issues revision 2 and asks again.
+    // 3. The engineer opens the thread from the gate's pin, resolves it, issues revision 2 and asks again.
     await engineer.page.reload();
-    await engineer.page.getByRole('button', { name: /^Review/ }).click();
-    await engineer.page.locator('[data-annotation="TOP"] .thread-head').click();
-    await engineer.page.locator('[data-annotation="TOP"]').getByRole('button', { name: 'Resolve' }).click();
+    await engineer.page.locator('[data-pin="gate:TOP"]').click();
+    await engineer.page.locator('[data-annotation="TOP"].open').getByRole('button', { name: 'Resolve' }).click();
     await engineer.page.locator('[data-annotation="TOP"][data-status="resolved"]').waitFor();
+    await expect.poll(() => engineer.page.locator('[data-pin="gate:TOP"]').getAttribute('data-severity')).toBe('resolved');
     await engineer.page.getByRole('button', { name: 'Issue revision' }).click();
     await engineer.page.getByLabel('Reason for the revision').fill('Answer to the review');
     await engineer.page.getByRole('dialog').getByRole('button', { name: 'Issue revision' }).click();
@@ -135,15 +140,31 @@ describe('peer review in the browser', () => {
     const status = await api<{ status: string }>(reviewer.page, 'get', `/api/projects/${project.id}/sifs/${sif.id}`);
     expect(status.status).toBe('approved');
 
-    // 5. The mail fake took the three kinds of notice (the admin's list shows each one as accepted).
+    // 5. The test's SMTP server, which the app was configured to use as its real host, received the three
+    // kinds of notice: review requested (twice), comment on your model, returned and approved.
+    const domain = inject('mailDomain');
+    const received = async () => {
+      const reply = await fetch(inject('mailInboxUrl'));
+      return ((await reply.json()) as ReceivedMail[]).filter((mail) => mail.raw.includes(tag) || mail.subject.includes(MODEL.name));
+    };
+    await expect.poll(async () => (await received()).length).toBeGreaterThanOrEqual(5);
+    const mails = (await received()).map((mail) => ({ to: mail.to.join(','), subject: mail.subject, from: mail.from }));
+    expect(mails.filter((mail) => mail.subject.startsWith(`[Proofline] Review requested: ${tag}`)).map((mail) => mail.to)).toEqual([`reviewer@${domain}`, `reviewer@${domain}`]);
+    expect(mails.filter((mail) => mail.subject.includes(`commented on ${MODEL.name} revision 1`)).map((mail) => mail.to)).toEqual([`engineer@${domain}`]);
+    expect(mails.filter((mail) => mail.subject.includes(`${tag} ${MODEL.name} revision 1 returned by`)).map((mail) => mail.to)).toEqual([`engineer@${domain}`]);
+    expect(mails.filter((mail) => mail.subject.includes(`${tag} ${MODEL.name} revision 2 approved by`)).map((mail) => mail.to)).toEqual([`engineer@${domain}`]);
+    expect(mails).toHaveLength(5);
+    expect(new Set(mails.map((mail) => mail.from))).toEqual(new Set(['proofline@localhost']));
+
+    // The admin's list shows the same notices as accepted by the host.
     const admin = await open(ADMIN);
     await admin.page.goto(`${inject('baseUrl')}/admin/mail`);
     const rows = admin.page.locator('[data-sent-mail]').filter({ hasText: tag });
     await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(4);
     const texts = await rows.allInnerTexts();
-    expect(texts.filter((text) => text.includes('review-requested') && text.includes('reviewer@'))).toHaveLength(2);
-    expect(texts.filter((text) => text.includes('review-returned') && text.includes('engineer@'))).toHaveLength(1);
-    expect(texts.filter((text) => text.includes('review-approved') && text.includes('engineer@'))).toHaveLength(1);
+    expect(texts.filter((text) => text.includes('review-requested') && text.includes(`reviewer@${domain}`))).toHaveLength(2);
+    expect(texts.filter((text) => text.includes('review-returned') && text.includes(`engineer@${domain}`))).toHaveLength(1);
+    expect(texts.filter((text) => text.includes('review-approved') && text.includes(`engineer@${domain}`))).toHaveLength(1);
     expect(texts.every((text) => text.includes('accepted'))).toBe(true);
     await screenshot(admin.page, 'review-sent-mail');
 
