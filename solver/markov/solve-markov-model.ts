@@ -130,7 +130,7 @@ export function solveMarkovModel(model: MarkovModel, options: MarkovSolveOptions
     pfh,
     rrf: pfdAvg > 0 ? 1 / pfdAvg : Number.MAX_VALUE,
     sil: silReached(measure, model.mission.demand),
-    curve: { hours: Array.from(summary.hours), pfd: Array.from(summary.pfd) },
+    curve: { hours: Array.from(summary.hours), pfd: Array.from(summary.pfd), frequency: Array.from(summary.frequency) },
     simplified: [],
     cutSets: [],
     importance: [],
@@ -143,6 +143,8 @@ export function solveMarkovModel(model: MarkovModel, options: MarkovSolveOptions
 interface Summary {
   readonly hours: Float64Array;
   readonly pfd: Float64Array;
+  /** w(t): the function's failure frequency (per hour) at the output points. */
+  readonly frequency: Float64Array;
   readonly pfdIntegral: number;
   readonly frequencyIntegral: number;
   readonly integralErrorBound: number;
@@ -154,6 +156,7 @@ function single(solution: ChainSolution, schedule: Schedule): Summary {
   return {
     hours: scheduleHours(schedule),
     pfd: solution.pfd,
+    frequency: solution.frequency,
     pfdIntegral: solution.pfdIntegral,
     frequencyIntegral: solution.frequencyIntegral,
     integralErrorBound: solution.integralErrorBound,
@@ -170,6 +173,7 @@ function combineSeries(solutions: readonly ChainSolution[], schedule: Schedule):
   const hours = scheduleHours(schedule);
   const count = schedule.pointCount;
   const pfd = new Float64Array(count);
+  const frequency = new Float64Array(count);
   const crossPfd = new Float64Array(count);
   const crossFrequency = new Float64Array(count);
   for (let point = 0; point < count; point += 1) {
@@ -191,6 +195,7 @@ function combineSeries(solutions: readonly ChainSolution[], schedule: Schedule):
       frequencySum += solution.frequency[point];
       frequencySeries += solution.frequency[point] * othersUp;
     });
+    frequency[point] = frequencySeries;
     crossFrequency[point] = frequencySum - frequencySeries;
   }
   let crossPfdIntegral = 0;
@@ -215,6 +220,7 @@ function combineSeries(solutions: readonly ChainSolution[], schedule: Schedule):
   return {
     hours: pick(hours),
     pfd: pick(pfd),
+    frequency: pick(frequency),
     pfdIntegral: solutions.reduce((sum, solution) => sum + solution.pfdIntegral, 0) - crossPfdIntegral,
     frequencyIntegral: solutions.reduce((sum, solution) => sum + solution.frequencyIntegral, 0) - crossFrequencyIntegral,
     integralErrorBound: solutions.reduce((sum, solution) => sum + solution.integralErrorBound, 0) + crossError,
