@@ -364,31 +364,66 @@ export function markovIssues(model: z.infer<typeof markovModelShape>): Issue[] {
 
 type StateChain = Pick<MarkovPart, 'states' | 'transitions' | 'tests'>;
 
+/**
+ * Linear in the size of the chain and free of per-item strings, since a generated chain can hold millions
+ * of transitions: states are numbered once, repeated transitions are found by bucketing them by source
+ * state (a stable counting sort) and marking targets per bucket, test rows are summed in typed arrays.
+ */
 function stateChainIssues(model: StateChain, missionHours: number): Issue[] {
   const issues: Issue[] = [...duplicateIds(model.states, 'states')];
-  const stateIds = new Set(model.states.map((state) => state.id));
-  const initialSum = model.states.reduce((sum, state) => sum + (state.initial ?? 0), 0);
+  const stateCount = model.states.length;
+  const stateIndex = new Map<string, number>();
+  let initialSum = 0;
+  model.states.forEach((state, index) => {
+    if (!stateIndex.has(state.id)) stateIndex.set(state.id, index);
+    initialSum += state.initial ?? 0;
+  });
   if (Math.abs(initialSum - 1) > 1e-9) {
     issues.push({ path: ['states'], message: `the initial probabilities sum to ${initialSum}, not 1` });
   }
-  const seenPairs = new Map<string, number>();
+  const transitionCount = model.transitions.length;
+  const sources = new Int32Array(transitionCount);
+  const targets = new Int32Array(transitionCount);
+  const perSource = new Int32Array(stateCount + 1);
+  model.transitions.forEach((transition, index) => {
+    sources[index] = stateIndex.get(transition.from) ?? -1;
+    targets[index] = stateIndex.get(transition.to) ?? -1;
+    if (sources[index] >= 0) perSource[sources[index] + 1] += 1;
+  });
+  for (let state = 0; state < stateCount; state += 1) perSource[state + 1] += perSource[state];
+  const bySource = new Int32Array(perSource[stateCount]);
+  const fill = perSource.slice(0, stateCount);
+  for (let index = 0; index < transitionCount; index += 1) if (sources[index] >= 0) bySource[fill[sources[index]]++] = index;
+  const repeats = new Int32Array(transitionCount).fill(-1);
+  const seenFrom = new Int32Array(stateCount).fill(-1);
+  const firstAt = new Int32Array(stateCount);
+  for (let source = 0; source < stateCount; source += 1) {
+    for (let slot = perSource[source]; slot < perSource[source + 1]; slot += 1) {
+      const index = bySource[slot];
+      const target = targets[index];
+      if (target < 0) continue;
+      if (seenFrom[target] === source) repeats[index] = firstAt[target];
+      else {
+        seenFrom[target] = source;
+        firstAt[target] = index;
+      }
+    }
+  }
   model.transitions.forEach((transition, index) => {
     for (const end of ['from', 'to'] as const) {
-      if (!stateIds.has(transition[end])) {
+      if ((end === 'from' ? sources : targets)[index] < 0) {
         issues.push({ path: ['transitions', index, end], message: `transition ${index} refers to unknown state "${transition[end]}"` });
       }
     }
     if (transition.from === transition.to) {
       issues.push({ path: ['transitions', index, 'to'], message: `transition ${index} goes from "${transition.from}" into the same state` });
     }
-    const pair = `${transition.from}\u0000${transition.to}`;
-    const first = seenPairs.get(pair);
-    if (first !== undefined) {
-      issues.push({ path: ['transitions', index], message: `transition ${index} repeats "${transition.from}" -> "${transition.to}" (also transitions[${first}])` });
-    } else {
-      seenPairs.set(pair, index);
+    if (repeats[index] >= 0) {
+      issues.push({ path: ['transitions', index], message: `transition ${index} repeats "${transition.from}" -> "${transition.to}" (also transitions[${repeats[index]}])` });
     }
   });
+  const rowSums = new Float64Array(stateCount);
+  const rowOfTest = new Int32Array(stateCount).fill(-1);
   (model.tests ?? []).forEach((test, testIndex) => {
     if (test.intervalHours > missionHours) {
       issues.push({ path: ['tests', testIndex, 'intervalHours'], message: `test ${testIndex}: interval ${test.intervalHours} h is longer than the mission (${missionHours} h)` });
@@ -396,18 +431,26 @@ function stateChainIssues(model: StateChain, missionHours: number): Issue[] {
     if (test.firstHours !== undefined && test.firstHours > missionHours) {
       issues.push({ path: ['tests', testIndex, 'firstHours'], message: `test ${testIndex}: first test at ${test.firstHours} h is after the mission end (${missionHours} h)` });
     }
-    const rows = new Map<string, number>();
+    const rowOrder: number[] = [];
     test.moves.forEach((move, moveIndex) => {
       for (const end of ['from', 'to'] as const) {
-        if (!stateIds.has(move[end])) {
+        if (!stateIndex.has(move[end])) {
           issues.push({ path: ['tests', testIndex, 'moves', moveIndex, end], message: `test ${testIndex} moves ${end} unknown state "${move[end]}"` });
         }
       }
-      rows.set(move.from, (rows.get(move.from) ?? 0) + move.probability);
+      const source = stateIndex.get(move.from);
+      if (source === undefined) return;
+      if (rowOfTest[source] !== testIndex) {
+        rowOfTest[source] = testIndex;
+        rowSums[source] = 0;
+        rowOrder.push(source);
+      }
+      rowSums[source] += move.probability;
     });
-    for (const [from, sum] of rows) {
+    for (const source of rowOrder) {
+      const sum = rowSums[source];
       if (Math.abs(sum - 1) > 1e-9) {
-        issues.push({ path: ['tests', testIndex, 'moves'], message: `test ${testIndex}: the moves out of "${from}" sum to ${sum}, not 1` });
+        issues.push({ path: ['tests', testIndex, 'moves'], message: `test ${testIndex}: the moves out of "${model.states[source].id}" sum to ${sum}, not 1` });
       }
     }
   });

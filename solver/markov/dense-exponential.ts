@@ -155,11 +155,22 @@ export function propagatorWithIntegral(
   columns: readonly Float64Array[],
 ): { propagator: Float64Array; integrals: Float64Array[] } {
   const size = n + columns.length;
+  // The block B h is scaled by a power of two c so its column sums do not exceed the 1-norm of Q h:
+  // exp([[Q h, c B h], [0, 0]]) has c times the integral in its top-right block, and a large B (many down
+  // states times a long step) would otherwise raise the norm and with it the number of squarings.
+  let generatorNorm = 0;
+  for (let j = 0; j < n; j += 1) {
+    let sum = 0;
+    for (let i = 0; i < n; i += 1) sum += Math.abs(generator[i * n + j]);
+    generatorNorm = Math.max(generatorNorm, sum * hours);
+  }
+  const columnNorm = columns.reduce((best, column) => Math.max(best, column.reduce((sum, value) => sum + Math.abs(value), 0) * hours), 0);
+  const scale = columnNorm > generatorNorm && generatorNorm > 0 ? 2 ** Math.floor(Math.log2(generatorNorm / columnNorm)) : 1;
   const augmented = new Float64Array(size * size);
   for (let i = 0; i < n; i += 1) {
     for (let j = 0; j < n; j += 1) augmented[i * size + j] = generator[i * n + j] * hours;
     columns.forEach((column, c) => {
-      augmented[i * size + n + c] = column[i] * hours;
+      augmented[i * size + n + c] = column[i] * hours * scale;
     });
   }
   const full = expm(augmented, size);
@@ -167,7 +178,7 @@ export function propagatorWithIntegral(
   for (let i = 0; i < n; i += 1) propagator.set(full.subarray(i * size, i * size + n), i * n);
   const integrals = columns.map((_, c) => {
     const integral = new Float64Array(n);
-    for (let i = 0; i < n; i += 1) integral[i] = full[i * size + n + c];
+    for (let i = 0; i < n; i += 1) integral[i] = full[i * size + n + c] / scale;
     return integral;
   });
   return { propagator, integrals };

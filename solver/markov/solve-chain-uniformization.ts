@@ -50,6 +50,7 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
   const scaledIn = new Float64Array(chain.inRate.length);
   for (let state = 0; state < n; state += 1) diagonal[state] = rate > 0 ? 1 - chain.exitRate[state] / rate : 1;
   for (let slot = 0; slot < scaledIn.length; slot += 1) scaledIn[slot] = chain.inRate[slot] / rate;
+  const observed = observedStates(chain);
 
   const pfd = new Float64Array(schedule.pointCount);
   const frequency = new Float64Array(schedule.pointCount);
@@ -129,7 +130,7 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
         });
       }
       if (k + 1 === terms) break;
-      multiplyUniformized(chain, diagonal, scaledIn, current, next, sums);
+      multiplyUniformized(chain, diagonal, scaledIn, observed, current, next, sums);
       downSeries[k + 1] = sums[0];
       flowSeries[k + 1] = sums[1];
       products += 1;
@@ -219,30 +220,52 @@ export function solveChainUniformization(context: ChainSolveContext): ChainSolut
 function uniformizationRate(chain: ChainSolveContext['chain']): number {
   let largest = 0;
   for (const rate of chain.exitRate) if (rate > largest) largest = rate;
-  return largest * 1.02;
+  return largest;
 }
 
-/** output = input (I + Q / Lambda); sums receives output . down and output . downFlowRate. */
+/** The down states, and the up states with a failure flow into down states with those rates. */
+interface ObservedStates {
+  readonly down: Int32Array;
+  readonly flowing: Int32Array;
+  readonly flowRate: Float64Array;
+}
+
+function observedStates(chain: ChainSolveContext['chain']): ObservedStates {
+  const down: number[] = [];
+  const flowing: number[] = [];
+  for (let state = 0; state < chain.size; state += 1) {
+    if (chain.down[state] !== 0) down.push(state);
+    if (chain.downFlowRate[state] !== 0) flowing.push(state);
+  }
+  return { down: Int32Array.from(down), flowing: Int32Array.from(flowing), flowRate: Float64Array.from(flowing, (state) => chain.downFlowRate[state]) };
+}
+
+/**
+ * output = input (I + Q / Lambda); sums receives output . down and output . downFlowRate, summed over the
+ * few states where those are non-zero after the product, so the gather loop does nothing else.
+ */
 function multiplyUniformized(
   chain: ChainSolveContext['chain'],
   diagonal: Float64Array,
   scaledIn: Float64Array,
+  observed: ObservedStates,
   input: Float64Array,
   output: Float64Array,
   sums: Float64Array,
 ): void {
-  const { inStart, inSource, down, downFlowRate } = chain;
+  const { inStart, inSource } = chain;
   const n = chain.size;
-  let downSum = 0;
-  let flowSum = 0;
+  let slot = 0;
   for (let target = 0; target < n; target += 1) {
     let sum = input[target] * diagonal[target];
     const end = inStart[target + 1];
-    for (let slot = inStart[target]; slot < end; slot += 1) sum += input[inSource[slot]] * scaledIn[slot];
+    for (; slot < end; slot += 1) sum += input[inSource[slot]] * scaledIn[slot];
     output[target] = sum;
-    downSum += sum * down[target];
-    flowSum += sum * downFlowRate[target];
   }
+  let downSum = 0;
+  for (let index = 0; index < observed.down.length; index += 1) downSum += output[observed.down[index]];
+  let flowSum = 0;
+  for (let index = 0; index < observed.flowing.length; index += 1) flowSum += output[observed.flowing[index]] * observed.flowRate[index];
   sums[0] = downSum;
   sums[1] = flowSum;
 }

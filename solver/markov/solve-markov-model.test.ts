@@ -146,9 +146,9 @@ describe('Markov engine: periodic regime of repeated test phases', () => {
     return rows;
   }
 
-  function expectStatesAtTests(chain: MarkovModel, moves: Record<number, number>, interval: number): string {
+  function expectStatesAtTests(chain: MarkovModel, moves: Record<number, number>, interval: number, method: (typeof METHODS)[number] = 'uniformization'): string {
     // Reference: mathjs expm per phase (npm, general-purpose library). Tolerance 1e-9 absolute per state.
-    const result = solveMarkovModel(chain, { chainMethod: 'uniformization', timePoints: 40 });
+    const result = solveMarkovModel(chain, { chainMethod: method, timePoints: 40 });
     for (const { time, before, after } of phaseReference(chain, moves, interval)) {
       const point = result.curve.hours.indexOf(time);
       expect(point).toBeGreaterThan(0);
@@ -172,6 +172,29 @@ describe('Markov engine: periodic regime of repeated test phases', () => {
     chain.transitions.push({ from: 'OK', to: 'N', rate: 3e-6 });
     const algorithm = expectStatesAtTests(chain, { 2: 6, 5: 6, 4: 1 }, 4380);
     expect(algorithm).toMatch(/ 0 repeated the previous phase/);
+  });
+
+  it('dense method: repeats phases in the periodic regime too, matching mathjs at every test time', () => {
+    const algorithm = expectStatesAtTests(repairable(), { 2: 6, 5: 6, 4: 1 }, 4380, 'dense');
+    expect(Number(/(\d+) of \d+ segments repeated the previous phase/.exec(algorithm)?.[1])).toBeGreaterThan(0);
+  });
+
+  it('dense method without a periodic regime switches to whole-segment propagators: PFD at every test time as mathjs, to 1e-10', () => {
+    // Reference: mathjs expm per phase, PFD = sum of the down states (3, 4, 5, 6 and the untested N).
+    // 40 phases of one shape: stepping each would cost more than exp(Q L) once, so the engine switches.
+    const chain = repairable();
+    chain.states.push({ id: 'N', down: true });
+    chain.transitions.push({ from: 'OK', to: 'N', rate: 3e-6 });
+    chain.tests![0].intervalHours = chain.mission.hours / 40;
+    const result = solveMarkovModel(chain, { chainMethod: 'dense', includeStates: false, timePoints: 400 });
+    expect(result.algorithm).toMatch(/ 0 of 40 segments repeated/);
+    expect(Number(/(\d+) propagated with whole-segment propagators/.exec(result.algorithm)?.[1])).toBeGreaterThan(20);
+    for (const { time, before, after } of phaseReference(chain, { 2: 6, 5: 6, 4: 1 }, chain.tests![0].intervalHours)) {
+      const point = result.curve.hours.findIndex((hour) => Math.abs(hour - time) < 1e-6);
+      const down = (p: number[]) => p[3] + p[4] + p[5] + p[6] + p[7];
+      expect(Math.abs(result.curve.pfd[point] - down(before))).toBeLessThan(1e-10);
+      expect(Math.abs(result.curve.pfd[point + 1] - down(after))).toBeLessThan(1e-10);
+    }
   });
 
   it('agrees with the dense Pade-13 solution on a generated shared-crew chain (PFDavg and PFH to 1e-8)', () => {
@@ -242,6 +265,32 @@ describe('Markov engine: methods and parts agree', () => {
     dense.curve.pfd.forEach((value, point) => expect(Math.abs(value - sparse.curve.pfd[point])).toBeLessThan(1e-10));
     expect(dense.algorithm).toMatch(/Pade-13/);
     expect(sparse.algorithm).toMatch(/uniformization/);
+  });
+
+  it('dense and uniformization agree within their stated bounds on a crew chain whose states are nearly all down', () => {
+    // Internal consistency of two unrelated algorithms. This chain once differed by 8e-11 against a stated
+    // 1e-12: the Van Loan block (one down indicator per state times the step) set the Pade scaling, 11
+    // squarings instead of 3, each doubling the rounding carried so far (Higham 2005, section 2), and the
+    // rows of exp(Q h) lost that much mass at every step. Tolerance: 1e-12 relative (6e-14 measured now),
+    // and within both stated bounds.
+    const channel = (lambdaDU: number, lambdaDD: number) => ({ lambdaDU, lambdaDD, mttrHours: 8, proofTest: { intervalHours: (10 * YEAR) / 40 } });
+    const { markov } = generateModels({
+      name: 'many down states',
+      mission: { hours: 10 * YEAR, demand: 'low' },
+      sharedRepairCrew: true,
+      groups: [
+        { id: 'LS', voting: '1oo2', beta: 0.05, betaD: 0.02, channels: { identical: channel(1e-6, 3e-6), count: 2 } },
+        { id: 'XV', voting: '1oo1', channels: [channel(2e-6, 1e-6)] },
+      ],
+    });
+    expect(markov.states.filter((state) => state.down).length).toBeGreaterThan(0.9 * markov.states.length);
+    const dense = solveMarkovModel(markov, { chainMethod: 'dense', includeStates: false });
+    const sparse = solveMarkovModel(markov, { chainMethod: 'uniformization', includeStates: false });
+    const allowed = dense.errorBound! + sparse.errorBound!;
+    expect(allowed).toBeLessThan(1e-9);
+    expect(Math.abs(dense.pfdAvg - sparse.pfdAvg) / sparse.pfdAvg).toBeLessThan(Math.min(allowed, 1e-12));
+    expect(Math.abs(dense.pfh - sparse.pfh) / sparse.pfh).toBeLessThan(Math.min(allowed, 1e-12));
+    dense.curve.pfd.forEach((value, point) => expect(Math.abs(value - sparse.curve.pfd[point])).toBeLessThan(1e-12 * sparse.pfdMax));
   });
 
   it('independent parts in series equal the product chain: PFDavg and PFH to 1e-7', () => {
