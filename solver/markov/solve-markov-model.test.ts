@@ -315,10 +315,35 @@ describe('Markov engine: methods and parts agree', () => {
     });
     const combined = solveMarkovModel(series, {});
     const reference = solveMarkovModel(product, {});
-    expect(combined.algorithm).toMatch(/2 independent parts/);
+    expect(combined.algorithm).toMatch(/2 independent parts in series as declared in the file/);
+    expect(reference.algorithm).toMatch(/^one chain as given \(independent parts are taken only as declared/);
     expect(Math.abs(combined.pfdAvg - reference.pfdAvg) / reference.pfdAvg).toBeLessThan(1e-7);
     expect(Math.abs(combined.pfh - reference.pfh) / reference.pfh).toBeLessThan(1e-7);
     expect(combined.states!.map((state) => state.id)).toEqual(['OK', 'DU', 'B/OK', 'B/DU']);
+  });
+
+  it('a part is independent by construction: naming a state of the main chain or of another part is an error', () => {
+    // docs/model-format.md: state ids are local to their part, so a part cannot reach another's states.
+    const first = oneOutOfOne(2e-6, YEAR);
+    const coupled: MarkovModel = {
+      ...first,
+      parts: [
+        { id: 'B', states: [{ id: 'UP', initial: 1 }, { id: 'DN', down: true }], transitions: [{ from: 'UP', to: 'DU', rate: 1e-6 }] },
+        { id: 'C', states: [{ id: 'UP', initial: 1 }, { id: 'DN', down: true }], transitions: [{ from: 'UP', to: 'DN', rate: 1e-6 }], tests: [{ intervalHours: YEAR, moves: [{ from: 'OK', to: 'UP', probability: 1 }] }] },
+      ],
+    };
+    const error = (() => {
+      try {
+        solveMarkovModel(coupled, {});
+      } catch (caught) {
+        return caught as ModelError;
+      }
+      throw new Error('expected a ModelError');
+    })();
+    expect(error).toBeInstanceOf(ModelError);
+    const text = error.issues.map((issue) => `${issue.path.join('.')}: ${issue.message}`).join('\n');
+    expect(text).toMatch(/parts\.0\.transitions\.0\.to: part "B": transition 0 refers to unknown state "DU"/);
+    expect(text).toMatch(/parts\.1\.tests\.0\.moves\.0\.from: part "C": test 0 moves from unknown state "OK"/);
   });
 
   it('leaves transitions marked detected out of PFH but not out of PFD', () => {

@@ -108,7 +108,9 @@ export function solveMarkovModel(model: MarkovModel, options: MarkovSolveOptions
   for (const value of summary.pfd) pfdMax = Math.max(pfdMax, value);
   const measure = model.mission.demand === 'low' ? pfdAvg : pfh;
   const algorithm =
-    (combined ? `${chains.length} independent parts in series, each solved on its own and combined exactly. ` : '') + descriptions.join('. ');
+    (combined
+      ? `${chains.length} independent parts in series as declared in the file (a part's transitions and tests reach only its own states), each solved on its own and combined exactly. `
+      : 'one chain as given (independent parts are taken only as declared in "parts"; none are inferred from a flat state list). ') + descriptions.join('. ');
 
   const states = keepStates
     ? chains.flatMap((chain, chainIndex) =>
