@@ -73,6 +73,10 @@ export function createSolveService(options: SolveServiceOptions) {
         file = requireModelFile(revision.content, 'revision');
         source = { revisionId: revision.id, revisionNumber: revision.number, draftVersion: null };
       }
+      // Refused here rather than queued to fail: the Monte Carlo engine simulates fault trees only (solver/index.ts).
+      if (settings.method === 'montecarlo' && file.kind !== 'fault-tree') {
+        throw apiErrors.invalidField('settings.method', 'Monte Carlo simulation is for fault trees; a state model is solved exactly (method "exact")');
+      }
       const contentHash = modelContentHash(file);
       const cacheKey = resultCacheKey(contentHash, options.solverVersion, settings);
       const [stored] = await db.select({ id: solveResults.id }).from(solveResults).where(eq(solveResults.cacheKey, cacheKey));

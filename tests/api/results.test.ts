@@ -58,7 +58,11 @@ const MODEL: FaultTreeModel = {
 async function solvedModel(engineer: Agent): Promise<Solve> {
   const created = await engineer.post(`/api/projects/${world.projectA}/sifs/${world.sifDraft}/models`).send({ file: MODEL });
   expect(created.status).toBe(201);
-  const started = await engineer.post(`/api/projects/${world.projectA}/models/${created.body.id}/solves`).send({ source: { kind: 'draft', version: 1 }, settings: { timePoints: 2000 } });
+  return solvedDraft(engineer, created.body.id, { timePoints: 2000 });
+}
+
+async function solvedDraft(engineer: Agent, modelId: string, settings: Record<string, unknown>): Promise<Solve> {
+  const started = await engineer.post(`/api/projects/${world.projectA}/models/${modelId}/solves`).send({ source: { kind: 'draft', version: 1 }, settings });
   expect([200, 202]).toContain(started.status);
   const until = Date.now() + 30_000;
   for (;;) {
@@ -145,7 +149,8 @@ describe('results routes', () => {
     expect(curve.status).toBe(200);
     expect(curve.headers['content-type']).toBe('text/csv; charset=utf-8');
     const lines = curve.text.trim().split('\r\n');
-    expect(lines[0]).toBe('hours,pfd');
+    // w(t) is a third column when the engine computed it (server/reports/report-files.test.ts checks both forms).
+    expect(lines[0]).toBe(solved.result?.curve.frequency ? 'hours,pfd,frequency_per_hour' : 'hours,pfd');
     expect(lines.length - 1).toBe(solved.result?.curve.hours.length);
     const [hours, pfd] = lines[100].split(',').map(Number);
     expect(hours).toBe(solved.result?.curve.hours[99]);
@@ -155,6 +160,52 @@ describe('results routes', () => {
     expect(row).toContain(`"'=HYPERLINK(""http://example.invalid"",""x"")"`);
     const contributions = await viewer.get(`${base(solved.id)}/csv?table=contributions`);
     expect(contributions.text.split('\r\n')[1]).toMatch(/^VALVES,/);
+  });
+
+  it('a Monte Carlo check of the same draft shows beside the exact solve, its 99 % interval holding the exact PFDavg', async () => {
+    const engineer = await signedInAgent(app, 'engineer');
+    const exact = await solvedModel(engineer);
+    const check = await solvedDraft(engineer, exact.modelId, { method: 'montecarlo', timePoints: 2000, samples: 100_000, seed: 11 });
+    expect(check.contentHash).toBe(exact.contentHash);
+    const analysis = resultAnalysis.parse((await engineer.get(`${base(exact.id)}/analysis`)).body);
+    expect(analysis.methods.map((method) => [method.solveId, method.method])).toEqual([
+      [exact.id, 'exact'],
+      [check.id, 'montecarlo'],
+    ]);
+    const simulated = analysis.methods[1];
+    expect(simulated.samples).toBe(100_000);
+    // The simulation is a seeded estimate of the same measure the exact engine integrates: its 99 %
+    // interval of the mean (normal approximation, common practice) must hold the exact PFDavg. The
+    // interval half-width shrinks as 1/sqrt(N), so a wrong engine would fall outside at this N.
+    const interval = simulated.interval!.pfdAvg;
+    expect(interval.level).toBe(0.99);
+    expect(interval.lower).toBeLessThanOrEqual(exact.result!.pfdAvg);
+    expect(interval.upper).toBeGreaterThanOrEqual(exact.result!.pfdAvg);
+    expect(interval.upper / interval.lower).toBeLessThan(1.5);
+    // The analysis of the Monte Carlo solve lists it first and the exact one beside it.
+    const fromCheck = resultAnalysis.parse((await engineer.get(`${base(check.id)}/analysis`)).body);
+    expect(fromCheck.methods.map((method) => method.method)).toEqual(['montecarlo', 'exact']);
+  });
+
+  it('refuses a Monte Carlo check of a state model by name instead of queueing a solve that must fail', async () => {
+    const engineer = await signedInAgent(app, 'engineer');
+    const created = await engineer.post(`/api/projects/${world.projectA}/sifs/${world.sifDraft}/models`).send({
+      file: {
+        format: 'proofline/model',
+        version: 1,
+        name: 'Two-state valve',
+        kind: 'markov',
+        mission: { hours: 87_600, demand: 'low' },
+        states: [{ id: 'OK', initial: 1 }, { id: 'FAILED', down: true }],
+        transitions: [{ from: 'OK', to: 'FAILED', rate: 2e-6 }],
+      },
+    });
+    expect(created.status).toBe(201);
+    const refused = await engineer.post(`/api/projects/${world.projectA}/models/${created.body.id}/solves`).send({ source: { kind: 'draft', version: 1 }, settings: { method: 'montecarlo' } });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.details.issues).toEqual([{ path: 'settings.method', message: 'Monte Carlo simulation is for fault trees; a state model is solved exactly (method "exact")' }]);
+    const listed = await engineer.get(`/api/projects/${world.projectA}/models/${created.body.id}/solves`);
+    expect(listed.body).toEqual([]);
   });
 
   it('refuses an unknown table (400), hides the solve from an outsider (404) and asks for a session (401)', async () => {

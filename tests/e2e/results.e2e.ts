@@ -62,7 +62,7 @@ describe('the results of the demo function in a browser', () => {
     solver?.kill('SIGTERM');
   });
 
-  it('solves the demo function, shows the verdict and the PFD(t) chart, runs the sensitivity and downloads the report', async () => {
+  it('solves the demo function, shows the verdict and the PFD(t) chart, runs the Monte Carlo check and the sensitivity and downloads the report', async () => {
     await page.goto(`${inject('baseUrl')}/projects`);
     await page.waitForURL(/\/sign-in/);
     await page.getByLabel('Username').fill(ENGINEER.username);
@@ -109,17 +109,28 @@ describe('the results of the demo function in a browser', () => {
     await expect.poll(() => page.locator('[data-pfd-chart]').textContent()).toContain('PFD(t)');
     await screenshot(page, 'results-01-verdict-and-chart');
 
+    // The Monte Carlo check of the same draft: 100,000 seeded missions. Its 99 % interval must hold the
+    // exact PFDavg (the same measure by another method), and the methods side by side list it.
+    await page.locator('[data-run-monte-carlo]').click();
+    await expect.poll(() => page.locator('[data-monte-carlo-status]').getAttribute('data-status'), { timeout: 60_000 }).toBe('succeeded');
+    await expect.poll(() => page.locator('[data-monte-carlo-result] tr[data-measure="pfdAvg"]').textContent(), { timeout: 30_000 }).toContain('yes');
+    const checkRow = (await page.locator('[data-monte-carlo-result] tr[data-measure="pfdAvg"]').textContent())!;
+    expect(checkRow).toContain('99 %:');
+    expect(checkRow).toContain(shownValue);
+    expect(await page.locator('[data-methods]').textContent()).toContain('Monte Carlo (100000 missions)');
+    await screenshot(page, 'results-02-monte-carlo-check');
+
     await page.getByLabel('Uncertainty samples').fill('40');
     await page.locator('[data-run-sensitivity]').click();
     await expect.poll(() => page.locator('[data-uncertainty-result]').count(), { timeout: 60_000 }).toBe(1);
     expect(await page.locator('[data-sweep-result]').textContent()).toContain('The longest interval that still meets the target');
-    await screenshot(page, 'results-02-sensitivity');
+    await screenshot(page, 'results-03-sensitivity');
 
     const [download] = await Promise.all([page.waitForEvent('download'), page.locator('[data-report-download]').click()]);
     expect(download.suggestedFilename()).toMatch(/^verification-PZT-1101-.*\.pdf$/);
     const { text, pages } = await pdfText(await readFile((await download.path())!));
     expect(pages).toBeGreaterThan(1);
-    for (const expected of ['Verification report', `${DEMO_MODEL_SIF_TAG}: Inlet separator V-110 high-pressure shutdown`, `PFDavg ${shownValue}`, 'SIL claim: SIL 2', 'MTTFspurious', 'does not replace competent judgement']) {
+    for (const expected of ['Verification report', `${DEMO_MODEL_SIF_TAG}: Inlet separator V-110 high-pressure shutdown`, `PFDavg ${shownValue}`, 'SIL claim: SIL 2', 'MTTFspurious', 'Monte Carlo (100000 missions)', 'does not replace competent judgement']) {
       expect(text).toContain(expected);
     }
     expect(pageErrors).toEqual([]);

@@ -143,7 +143,7 @@ export class ModelEditor {
   protected async solve(): Promise<void> {
     if (this.runner.running() || !(await this.readyToUse('solve'))) return;
     try {
-      await this.runner.start(this.projectId(), this.modelId(), this.store.version());
+      await this.runner.start(this.projectId(), this.modelId(), { kind: 'draft', version: this.store.version() });
     } catch (error) {
       this.errorHandler.handleError(error);
     }

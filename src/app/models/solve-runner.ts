@@ -1,10 +1,11 @@
 import { ErrorHandler, Injectable, computed, inject, signal } from '@angular/core';
-import { FINISHED_SOLVE_STATUSES, solve, solveProgressEvent, solveSummary, type Solve, type SolveSummary } from '../../../shared/api/solves.js';
+import { FINISHED_SOLVE_STATUSES, solve, solveProgressEvent, solveSummary, type Solve, type SolveSettingsInput, type SolveSource, type SolveSummary } from '../../../shared/api/solves.js';
 import { ModelRecords, solveEventsUrl } from './model-records';
 
 /**
- * Starts a solve of the draft and follows it through its server-sent events (status, progress, done)
- * until it finishes or the user cancels it. Provided by the editor page.
+ * Starts a solve (of the draft or of a revision, exact or Monte Carlo) and follows it through its
+ * server-sent events (status, progress, done) until it finishes or the user cancels it. Provided by the
+ * editor page and by the results page's Monte Carlo check.
  */
 @Injectable()
 export class SolveRunner {
@@ -29,13 +30,14 @@ export class SolveRunner {
   /** The id of the last solve that succeeded, for the results view. */
   readonly finishedId = computed(() => (this.current()?.status === 'succeeded' ? this.current()!.id : null));
 
-  async start(projectId: string, modelId: string, draftVersion: number): Promise<void> {
+  /** The default settings (exact) unless `settings` says otherwise. */
+  async start(projectId: string, modelId: string, source: SolveSource, settings?: SolveSettingsInput): Promise<void> {
     this.stop();
     this.projectId = projectId;
     this.cancelling.set(false);
     this.fraction.set(0);
     this.stageText.set('queued');
-    const started = await this.records.startSolve(projectId, modelId, { source: { kind: 'draft', version: draftVersion } });
+    const started = await this.records.startSolve(projectId, modelId, settings ? { source, settings } : { source });
     this.update(started);
     if (!FINISHED_SOLVE_STATUSES.includes(started.status)) this.follow(started.id);
   }

@@ -15,6 +15,7 @@ import type { Solve } from '../../../shared/api/solves.js';
 import type { SolveResult } from '../../../shared/solve-result.js';
 import { CanvasFocus } from '../canvas/canvas-focus';
 import { barChartOptions } from './chart-options';
+import { MonteCarloCheck } from './monte-carlo-check';
 import { PfdChart } from './pfd-chart';
 import { ResultRecords } from './result-records';
 import { contributionRows, cutSetRows, importanceRows, itemLabels, type ImportanceKey } from './result-tables';
@@ -44,7 +45,7 @@ interface Loaded {
  */
 @Component({
   selector: 'pl-results-page',
-  imports: [RouterLink, MatButton, MatIcon, MatProgressBar, NgxEchartsDirective, PfdChart, SensitivityPanel],
+  imports: [RouterLink, MatButton, MatIcon, MatProgressBar, NgxEchartsDirective, PfdChart, SensitivityPanel, MonteCarloCheck],
   providers: [provideEchartsCore({ echarts })],
   templateUrl: './results-page.html',
   styleUrl: './results-page.scss',
@@ -137,6 +138,18 @@ export class ResultsPage {
   protected onBarClick(event: { data?: unknown }): void {
     const data = event.data as { id?: string } | undefined;
     if (data?.id) this.show([data.id]);
+  }
+
+  /** Reads the analysis again (a Monte Carlo check of the same content finished); the solve is unchanged. */
+  protected async reloadAnalysis(): Promise<void> {
+    const current = this.loaded();
+    if (!current) return;
+    try {
+      const analysis = await this.records.analysis(this.projectId(), current.solve.id);
+      if (this.loaded() === current) this.loaded.set({ ...current, analysis });
+    } catch (error) {
+      this.errorHandler.handleError(error);
+    }
   }
 
   private async load(projectId: string, solveId: string): Promise<void> {

@@ -65,6 +65,40 @@ describe('verdictOf: SIL bands of IEC 61508-1:2010 Table 2 (low demand) and Tabl
   });
 });
 
+describe('verdictOf: every edge of IEC 61508-1:2010 Table 3 (PFH per hour, high or continuous demand), lower bound inclusive', () => {
+  const sil3 = target({ kind: 'sil', value: 3 }, 'high');
+  const high = (pfh: number, demand: 'high' | 'continuous' = 'high') => ({ demand, pfdAvg: 0.5, pfh, rrf: 2 });
+
+  it.each([
+    [1e-9, 4],
+    [9.999e-9, 4],
+    [1e-8, 3],
+    [9.999e-8, 3],
+    [1e-7, 2],
+    [9.999e-7, 2],
+    [1e-6, 1],
+    [9.999e-6, 1],
+  ])('PFH %s per hour is SIL %s, in the band that starts at or below it', (pfh, sil) => {
+    const verdict = verdictOf(high(pfh), sil3);
+    expect(verdict.sil).toBe(sil);
+    expect(verdict.band?.sil).toBe(sil);
+    expect(verdict.band!.lower).toBeLessThanOrEqual(pfh);
+    expect(verdict.band!.upper).toBeGreaterThan(pfh);
+  });
+
+  it('PFH 1e-5 per hour and above is below SIL 1; below 1e-9 the claim stays SIL 4 with no band (the table ends there)', () => {
+    expect(verdictOf(high(1e-5), sil3).sil).toBeNull();
+    expect(verdictOf(high(1e-5), sil3).band).toBeNull();
+    expect(verdictOf(high(1e-10), sil3).sil).toBe(4);
+    expect(verdictOf(high(1e-10), sil3).band).toBeNull();
+  });
+
+  it('continuous demand uses the same table; a SIL 3 target is met below 1e-7 and missed at it', () => {
+    expect(verdictOf(high(5e-8, 'continuous'), sil3)).toMatchObject({ measure: 'pfh', sil: 3, meets: true });
+    expect(verdictOf(high(1e-7, 'continuous'), sil3).meets).toBe(false);
+  });
+});
+
 describe('methods side by side and warnings', () => {
   const result = {
     demand: 'low',

@@ -111,3 +111,54 @@ export function formatMeasure(value: number | null | undefined): string {
 export function formatPercent(value: number | null | undefined): string {
   return value === null || value === undefined ? '–' : `${(value * 100).toFixed(1)} %`;
 }
+
+export interface MonteCarloMeasure {
+  readonly measure: 'pfdAvg' | 'pfh';
+  /** "PFDavg" or "PFH". */
+  readonly measureName: string;
+  readonly estimate: number;
+  readonly interval: { level: number; lower: number; upper: number };
+  /** The exact engine's value of the same content, or null when no exact solve of it succeeded. */
+  readonly exact: number | null;
+  /** Whether the exact value lies in the interval (bounds included); null without an exact value. */
+  readonly exactInside: boolean | null;
+  /** (estimate - exact) / exact, or null without a non-zero exact value. */
+  readonly difference: number | null;
+}
+
+export interface MonteCarloAgreement {
+  readonly solveId: string;
+  readonly samples: number | null;
+  /** The measure of the demand mode first (PFDavg low, PFH otherwise), then the other. */
+  readonly measures: readonly MonteCarloMeasure[];
+}
+
+/**
+ * The Monte Carlo check against the exact value of the same model content: each measure's estimate, its
+ * interval (99 % from the engine) and whether the exact value lies inside. An exact value outside the
+ * interval happens by chance in 1 check of 100 at that level; more often it points at a modelling
+ * difference between the engines (common practice of verifying a numerical method by simulation).
+ */
+export function monteCarloAgreement(methods: readonly MethodResult[], demand: SolveResult['demand']): MonteCarloAgreement | null {
+  const simulated = methods.find((method) => method.method === 'montecarlo');
+  if (!simulated?.interval) return null;
+  const exact = methods.find((method) => method.method === 'exact') ?? null;
+  const order: ('pfdAvg' | 'pfh')[] = demand === 'low' ? ['pfdAvg', 'pfh'] : ['pfh', 'pfdAvg'];
+  return {
+    solveId: simulated.solveId,
+    samples: simulated.samples,
+    measures: order.map((measure) => {
+      const interval = simulated.interval![measure];
+      const exactValue = exact ? exact[measure] : null;
+      return {
+        measure,
+        measureName: measure === 'pfdAvg' ? 'PFDavg' : 'PFH',
+        estimate: simulated[measure],
+        interval,
+        exact: exactValue,
+        exactInside: exactValue === null ? null : exactValue >= interval.lower && exactValue <= interval.upper,
+        difference: exactValue === null || exactValue === 0 ? null : (simulated[measure] - exactValue) / exactValue,
+      };
+    }),
+  };
+}
