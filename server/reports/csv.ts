@@ -28,12 +28,19 @@ function labelsOf(data: ReportData): Map<string, string> {
   return labels;
 }
 
+/** The curve: hours and PFD(t), and w(t) per hour as a third column when the engine computed it. */
+export function curveCsv(curve: ReportData['result']['curve']): string {
+  const { hours, pfd, frequency } = curve;
+  if (!frequency) return toCsv(['hours', 'pfd'], hours.map((time, index) => [time, pfd[index]]));
+  return toCsv(['hours', 'pfd', 'frequency_per_hour'], hours.map((time, index) => [time, pfd[index], frequency[index]]));
+}
+
 /** The rows of one results table as CSV. */
 export function resultCsv(data: ReportData, table: ResultTable): string {
   const { result, analysis } = data;
   switch (table) {
     case 'curve':
-      return toCsv(['hours', 'pfd'], result.curve.hours.map((hours, index) => [hours, result.curve.pfd[index]]));
+      return curveCsv(result.curve);
     case 'cut-sets':
       return toCsv(['rank', 'events', 'order', 'probability', 'share'], result.cutSets.map((set, index) => [index + 1, set.events.join(' '), set.order, set.probability, set.share]));
     case 'importance': {

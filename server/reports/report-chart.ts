@@ -2,10 +2,13 @@ import { bandsFor, type DemandKind } from '../../shared/sil.js';
 
 export interface ChartInput {
   readonly hours: readonly number[];
-  readonly pfd: readonly number[];
-  readonly pfdAvg: number;
-  readonly demand: DemandKind;
-  /** The target on PFD (low demand), or null. */
+  /** PFD(t), or the failure frequency w(t) per hour. */
+  readonly values: readonly number[];
+  /** The average drawn as a line: PFDavg, or PFH. */
+  readonly average: number;
+  /** The SIL bands shaded: of PFDavg (IEC 61508-1:2010 Table 2), of PFH (Table 3), or none. */
+  readonly bands: DemandKind | null;
+  /** The target on the drawn measure, or null. */
   readonly target: number | null;
 }
 
@@ -47,20 +50,21 @@ function escapeXml(text: string): string {
 }
 
 /**
- * The PFD(t) chart of the report as SVG: the sawtooth on a log axis, the average line, the target line
- * and the SIL bands shaded (IEC 61508-1:2010 Table 2).
+ * A curve of the report as SVG on a log axis: the PFD(t) sawtooth or w(t), the average line (PFDavg or
+ * PFH), the target line and the SIL bands shaded. The axis keeps at most 7 decades below the highest
+ * value, so a curve starting at 0 does not squash the part that matters.
  */
-export function pfdChartSvg(input: ChartInput): string {
-  let largest = Math.max(input.target ?? 0, input.pfdAvg);
+export function curveChartSvg(input: ChartInput): string {
+  let largest = Math.max(input.target ?? 0, input.average);
   let smallest = Number.POSITIVE_INFINITY;
-  for (const value of input.pfd) {
+  for (const value of input.values) {
     if (value > largest) largest = value;
     if (value > 0 && value < smallest) smallest = value;
   }
-  if (!Number.isFinite(smallest)) smallest = input.pfdAvg > 0 ? input.pfdAvg : 1e-6;
-  const bands = input.demand === 'low' ? bandsFor('low') : [];
+  if (!Number.isFinite(smallest)) smallest = input.average > 0 ? input.average : 1e-6;
+  const bands = input.bands === null ? [] : bandsFor(input.bands);
   const highest = largest * 2;
-  const lowest = Math.max(1e-9, smallest / 2);
+  const lowest = Math.max(highest * 1e-7, smallest / 2);
   const logLow = Math.floor(Math.log10(lowest));
   const logHigh = Math.ceil(Math.log10(Math.max(highest, lowest * 10)));
   const mission = input.hours[input.hours.length - 1] || 1;
@@ -92,10 +96,10 @@ export function pfdChartSvg(input: ChartInput): string {
     parts.push(`<text x="${position.toFixed(2)}" y="${HEIGHT - BOTTOM + 11}" font-size="7" text-anchor="middle" fill="#333">${year}</text>`);
   }
   parts.push(`<text x="${LEFT + plotWidth / 2}" y="${HEIGHT - 3}" font-size="7" text-anchor="middle" fill="#333">years</text>`);
-  const sampled = downsampleMinMax(input.hours, input.pfd, 600);
+  const sampled = downsampleMinMax(input.hours, input.values, 600);
   const points = sampled.hours.map((hours, index) => `${x(hours).toFixed(2)},${y(sampled.values[index]).toFixed(2)}`).join(' ');
   parts.push(`<polyline points="${points}" fill="none" stroke="#1f5fbf" stroke-width="0.8"/>`);
-  parts.push(`<line x1="${LEFT}" y1="${y(input.pfdAvg).toFixed(2)}" x2="${LEFT + plotWidth}" y2="${y(input.pfdAvg).toFixed(2)}" stroke="#2e7d32" stroke-width="0.8"/>`);
+  parts.push(`<line x1="${LEFT}" y1="${y(input.average).toFixed(2)}" x2="${LEFT + plotWidth}" y2="${y(input.average).toFixed(2)}" stroke="#2e7d32" stroke-width="0.8"/>`);
   if (input.target !== null) {
     parts.push(`<line x1="${LEFT}" y1="${y(input.target).toFixed(2)}" x2="${LEFT + plotWidth}" y2="${y(input.target).toFixed(2)}" stroke="#c62828" stroke-width="0.8" stroke-dasharray="4,3"/>`);
   }

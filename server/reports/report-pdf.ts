@@ -5,7 +5,7 @@ import type { Content, TDocumentDefinitions, TableCell } from 'pdfmake/interface
 import { isProbabilityEvent, type FaultTreeModel } from '../../shared/model-file.js';
 import { contributionsOf } from '../../solver/analysis/index.js';
 import type { ReportData } from './report-data.js';
-import { pfdChartSvg } from './report-chart.js';
+import { curveChartSvg } from './report-chart.js';
 import { faultTreeSvg } from './report-tree.js';
 
 /** The Roboto fonts pdfmake ships (Apache License 2.0), read from its package: nothing from a network. */
@@ -184,9 +184,7 @@ export function reportDefinition(data: ReportData, generatedAt: Date, generatedB
     ),
     { text: 'Methods side by side', style: 'subheading' },
     table(['Method', 'Scope', measureName, 'Deviation / solve', 'Notes'], methodRows, [120, 60, 50, 55, '*']),
-    { text: 'PFD(t) over the mission', style: 'subheading' },
-    { svg: pfdChartSvg({ hours: result.curve.hours, pfd: result.curve.pfd, pfdAvg: result.pfdAvg, demand: result.demand, target: low ? target : null }), width: 500 },
-    { text: 'Blue: PFD(t); green: PFDavg; red dashed: target; shaded: SIL bands (IEC 61508-1:2010 Table 2). Log axis.', style: 'note' },
+    ...curveCharts(result, target),
     heading('Weakest link'),
     table(['Item', 'Kind', 'Share of PFDavg', 'Contribution'], contributions.slice(0, LISTED_ROWS).map((row) => [row.label === row.id ? row.id : `${row.id} (${row.label})`, row.kind, percent(row.share), number(row.pfdAvg)])),
     { text: 'Minimal cut sets', style: 'subheading' },
@@ -290,6 +288,34 @@ export function reportDefinition(data: ReportData, generatedAt: Date, generatedB
 }
 
 /** The verification report as PDF bytes. */
+
+/**
+ * The report's charts. Low demand: PFD(t) against the bands of IEC 61508-1:2010 Table 2. High and
+ * continuous demand: w(t) and its average, the PFH, against the bands of Table 3, then PFD(t) for
+ * information; a result without w(t) says so instead.
+ */
+export function curveCharts(result: ReportData['result'], target: number | null): Content[] {
+  const { hours, pfd, frequency } = result.curve;
+  const low = result.demand === 'low';
+  const pfdChart: Content[] = [
+    { text: 'PFD(t) over the mission', style: 'subheading' },
+    { svg: curveChartSvg({ hours, values: pfd, average: result.pfdAvg, bands: low ? 'low' : null, target: low ? target : null }), width: 500 },
+    { text: `Blue: PFD(t); green: PFDavg${low ? '; red dashed: target; shaded: SIL bands (IEC 61508-1:2010 Table 2)' : ''}. Log axis.`, style: 'note' },
+  ];
+  if (low) return pfdChart;
+  const pfhChart: Content[] = frequency
+    ? [
+        { text: 'PFH: failure frequency w(t) over the mission', style: 'subheading' },
+        { svg: curveChartSvg({ hours, values: frequency, average: result.pfh, bands: 'high', target }), width: 500 },
+        { text: 'Blue: w(t) per hour; green: its average, the PFH; red dashed: target; shaded: SIL bands (IEC 61508-1:2010 Table 3). Log axis.', style: 'note' },
+      ]
+    : [
+        { text: 'PFH: failure frequency w(t) over the mission', style: 'subheading' },
+        { text: `This result has no w(t) curve: the engine that produced it does not compute one. Its PFH is ${result.pfh.toExponential(2)} per hour.`, style: 'note' },
+      ];
+  return [...pfhChart, ...pfdChart];
+}
+
 export async function reportPdf(data: ReportData, generatedAt: Date, generatedBy: string): Promise<Buffer> {
   return pdfmake.createPdf(reportDefinition(data, generatedAt, generatedBy)).getBuffer();
 }

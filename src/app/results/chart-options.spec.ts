@@ -28,11 +28,33 @@ describe('chart options', () => {
     expect(options.dataZoom).toHaveLength(2);
   });
 
-  it('the PFH view of a high-demand function shades the bands of Table 3 and draws the PFH over the mission', () => {
-    const options = pfdChartOptions({ hours, pfd, pfdAvg: 1e-3, pfh: 2e-7, demand: 'high', target: 3e-7, logScale: false, view: 'pfh' }) as { series: LineSeries[]; yAxis: { type: string } };
-    expect(options.series[0].data).toEqual([[0, 2e-7], [10, 2e-7]]);
-    expect(options.series[0].markArea?.data[0][0]).toEqual(expect.objectContaining({ name: 'SIL 4', yAxis: 1e-9 }));
-    expect(options.yAxis.type).toBe('value');
+  it('the PFH view draws w(t) with its average (the PFH) and target lines and the bands of IEC 61508-1:2010 Table 3', () => {
+    // w(t) of one untested channel, lambda exp(-lambda t) (the failure density of the exponential law).
+    const frequency = hours.map((t) => 2e-7 * Math.exp(-2e-7 * t));
+    const options = pfdChartOptions({ hours, pfd, frequency, pfdAvg: 1e-3, pfh: 1.98e-7, demand: 'high', target: 3e-7, logScale: false, view: 'pfh' }) as {
+      series: LineSeries[];
+      yAxis: { type: string; name: string };
+    };
+    const series = options.series[0];
+    expect(series.data).toHaveLength(10_000);
+    expect(series.data[0]).toEqual([0, 2e-7]);
+    expect(series.data[9_999][1]).toBeCloseTo(2e-7 * Math.exp(-2e-7 * 87_600), 18);
+    expect(series.sampling).toBe('lttb');
+    expect(series.markLine.data.map((mark) => [mark.name, mark.yAxis])).toEqual([['PFH', 1.98e-7], ['target', 3e-7]]);
+    expect(series.markArea?.data.map(([from, to]) => [from.name, from.yAxis, to.yAxis])).toEqual([
+      ['SIL 4', 1e-9, 1e-8],
+      ['SIL 3', 1e-8, 1e-7],
+      ['SIL 2', 1e-7, 1e-6],
+      ['SIL 1', 1e-6, 1e-5],
+    ]);
+    expect(options.yAxis).toMatchObject({ type: 'value', name: 'w(t) per hour' });
+  });
+
+  it('the PFH view of a result without w(t) has no options (no made-up curve); its PFD(t) view has', () => {
+    expect(pfdChartOptions({ hours, pfd, pfdAvg: 1e-3, pfh: 2e-7, demand: 'high', target: 3e-7, logScale: true, view: 'pfh' })).toBeNull();
+    const pfdView = pfdChartOptions({ hours, pfd, pfdAvg: 1e-3, pfh: 2e-7, demand: 'high', target: null, logScale: true, view: 'pfd' }) as { series: LineSeries[] };
+    // In high demand PFD(t) is shown for information: the low-demand bands would not apply to it.
+    expect(pfdView.series[0].markArea).toBeUndefined();
   });
 
   it('log axis range spans whole decades around the values', () => {

@@ -8,13 +8,15 @@ const BAND_COLOURS = ['rgba(46, 125, 50, 0.10)', 'rgba(46, 125, 50, 0.05)'];
 export interface PfdChartInput {
   readonly hours: readonly number[];
   readonly pfd: readonly number[];
+  /** The dangerous failure frequency w(t) per hour at `hours`, when the engine computed it. */
+  readonly frequency?: readonly number[];
   readonly pfdAvg: number;
   readonly pfh: number;
   readonly demand: DemandKind;
   /** The target on the shown measure, or null. */
   readonly target: number | null;
   readonly logScale: boolean;
-  /** 'pfd': the PFD(t) sawtooth; 'pfh': the PFH against the high-demand bands. */
+  /** 'pfd': the PFD(t) sawtooth; 'pfh': w(t) with its average, the PFH, against the high-demand bands. */
   readonly view: 'pfd' | 'pfh';
 }
 
@@ -42,27 +44,26 @@ function bandAreas(demand: DemandKind) {
 }
 
 /**
- * The results chart. PFD(t): the sawtooth (x in years), the PFDavg line, the target line, the SIL bands
- * shaded, zoom and pan by wheel, drag and slider, a hover read-out of t and PFD(t), log or linear axis.
- * Large curves are drawn by ECharts' own LTTB sampling, so 10,000 points stay smooth; no animation.
- * PFH: the average failure frequency over the mission against the high-demand bands.
+ * The results chart, or null for the PFH view of a result without w(t) (the caller says so instead of
+ * drawing made-up data). PFD(t): the sawtooth (x in years), the PFDavg line, the SIL bands of
+ * IEC 61508-1:2010 Table 2 shaded. PFH: the failure frequency w(t) per hour, its time average (the PFH,
+ * IEC 61508-6:2010 B.2.3) and the bands of Table 3. Both: the target line, zoom and pan by wheel, drag and
+ * slider, a hover read-out, log or linear axis. Large curves are drawn by ECharts' own LTTB sampling with
+ * no animation, so 10,000 points stay smooth.
  */
-export function pfdChartOptions(input: PfdChartInput): EChartsCoreOption {
+export function pfdChartOptions(input: PfdChartInput): EChartsCoreOption | null {
   const pfdView = input.view === 'pfd';
-  const data: [number, number][] = pfdView
-    ? input.hours.map((hours, index) => [hours / HOURS_PER_YEAR, input.pfd[index]])
-    : [
-        [0, input.pfh],
-        [(input.hours[input.hours.length - 1] ?? 0) / HOURS_PER_YEAR, input.pfh],
-      ];
+  const values = pfdView ? input.pfd : input.frequency;
+  if (!values) return null;
+  const data: [number, number][] = input.hours.map((hours, index) => [hours / HOURS_PER_YEAR, values[index]]);
   const average = pfdView ? input.pfdAvg : input.pfh;
-  const shownValues = [...(pfdView ? input.pfd : [input.pfh]), average, ...(input.target !== null ? [input.target] : [])];
-  const range = logAxisRange(shownValues);
-  const marks: object[] = [{ yAxis: average, name: pfdView ? 'PFDavg' : 'PFH', lineStyle: { color: '#2e7d32', width: 2 }, label: { formatter: `${pfdView ? 'PFDavg' : 'PFH'} ${formatMeasure(average)}`, position: 'insideStartTop' } }];
+  const averageName = pfdView ? 'PFDavg' : 'PFH';
+  const range = logAxisRange([...values, average, ...(input.target !== null ? [input.target] : [])]);
+  const marks: object[] = [{ yAxis: average, name: averageName, lineStyle: { color: '#2e7d32', width: 2 }, label: { formatter: `${averageName} ${formatMeasure(average)}`, position: 'insideStartTop' } }];
   if (input.target !== null) {
     marks.push({ yAxis: input.target, name: 'target', lineStyle: { color: '#c62828', type: 'dashed', width: 2 }, label: { formatter: `target ${formatMeasure(input.target)}`, position: 'insideEndTop' } });
   }
-  const bandDemand: DemandKind = pfdView ? 'low' : 'high';
+  const shadeBands = pfdView ? input.demand === 'low' : true;
   return {
     animation: false,
     grid: { left: 72, right: 24, top: 24, bottom: 72 },
@@ -74,7 +75,7 @@ export function pfdChartOptions(input: PfdChartInput): EChartsCoreOption {
     xAxis: { type: 'value', name: 'years', nameLocation: 'middle', nameGap: 28, min: 0, max: 'dataMax' },
     yAxis: {
       type: input.logScale ? 'log' : 'value',
-      name: pfdView ? 'PFD(t)' : 'PFH per hour',
+      name: pfdView ? 'PFD(t)' : 'w(t) per hour',
       min: input.logScale ? range.min : 0,
       max: input.logScale ? range.max : undefined,
       axisLabel: { formatter: (value: number) => formatMeasure(value) },
@@ -85,14 +86,14 @@ export function pfdChartOptions(input: PfdChartInput): EChartsCoreOption {
     ],
     series: [
       {
-        name: pfdView ? 'PFD(t)' : 'PFH',
+        name: pfdView ? 'PFD(t)' : 'w(t)',
         type: 'line',
         data,
         showSymbol: false,
         sampling: 'lttb',
         lineStyle: { width: 1.2, color: '#1f5fbf' },
         markLine: { symbol: 'none', silent: true, data: marks },
-        markArea: input.demand === 'low' || !pfdView ? { silent: true, data: bandAreas(bandDemand) } : undefined,
+        markArea: shadeBands ? { silent: true, data: bandAreas(pfdView ? 'low' : 'high') } : undefined,
       },
     ],
   };
