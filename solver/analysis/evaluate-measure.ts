@@ -1,10 +1,11 @@
-import type { FaultTreeModel } from '../../shared/model-file.js';
+import type { ModelFile } from '../../shared/model-file.js';
 import { FaultTreeEngine } from '../fault-tree/engine.js';
+import { solveMarkovModel } from '../markov/index.js';
 
 /** The measure a function is judged by: PFDavg in low demand, PFH otherwise (IEC 61508-1:2010 7.6.2.9). */
 export type DemandMeasure = 'pfdAvg' | 'pfh';
 
-export function measureOfDemand(model: FaultTreeModel): DemandMeasure {
+export function measureOfDemand(model: ModelFile): DemandMeasure {
   return model.mission.demand === 'low' ? 'pfdAvg' : 'pfh';
 }
 
@@ -19,12 +20,19 @@ export function meetsTarget(value: number, target: MeasureTarget): boolean {
 }
 
 /**
- * PFDavg or PFH of a fault tree by the exact engine (decision diagram, adaptive Gauss-Kronrod), without
- * the curve, cut sets or importance the full solve adds.
+ * PFDavg or PFH of a model by its exact engine, without what the full solve adds. A fault tree: the
+ * decision diagram with the adaptive Gauss-Kronrod integral, no curve, cut sets or importance. A state
+ * model: the Markov engine on its coarsest output grid (2 points) without state listings; its PFDavg and
+ * PFH integrate every phase between tests exactly whatever the grid (solver/markov/solve-markov-model.ts).
  */
-export function evaluateMeasure(model: FaultTreeModel, signal?: AbortSignal): number {
+export function evaluateMeasure(model: ModelFile, signal?: AbortSignal): number {
+  const measure = measureOfDemand(model);
+  if (model.kind === 'markov') {
+    const result = solveMarkovModel(model, { timePoints: 2, includeStates: false, signal });
+    return measure === 'pfdAvg' ? result.pfdAvg : result.pfh;
+  }
   const engine = new FaultTreeEngine(model, { signal });
-  return measureOfDemand(model) === 'pfdAvg' ? engine.pfdAverage().pfdAvg : engine.pfhAdaptive().pfh;
+  return measure === 'pfdAvg' ? engine.pfdAverage().pfdAvg : engine.pfhAdaptive().pfh;
 }
 
 /** Options of the analyses that solve a model many times. */

@@ -1,6 +1,7 @@
 import { erf } from 'mathjs';
 import { describe, expect, it } from 'vitest';
-import type { FaultTreeModel } from '../../shared/model-file.js';
+import type { FaultTreeModel, MarkovModel } from '../../shared/model-file.js';
+import { evaluateMeasure } from './evaluate-measure.js';
 import { intervalSweep, tornado, withProofTestInterval } from './sensitivity.js';
 import { lognormalSigma, quantile, rateUncertainty } from './uncertainty.js';
 
@@ -146,5 +147,87 @@ describe('failure-rate uncertainty', () => {
   it('type 7 quantiles: the median of 1..5 is 3, the 0.1 quantile of 1..11 is 2 (Hyndman and Fan 1996)', () => {
     expect(quantile([1, 2, 3, 4, 5], 0.5)).toBe(3);
     expect(quantile([1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11], 0.1)).toBeCloseTo(2, 12);
+  });
+});
+
+/** One channel as a state model: OK -> DU at lambda, each proof test (perfect) takes DU back to OK. */
+function singleChain(lambda: number, intervalHours: number): MarkovModel {
+  return {
+    format: 'proofline/model',
+    version: 1,
+    name: 'single channel, state model',
+    mission: { hours: MISSION, demand: 'low' },
+    kind: 'markov',
+    states: [{ id: 'OK', initial: 1 }, { id: 'DU', down: true }],
+    transitions: [{ from: 'OK', to: 'DU', rate: lambda, label: 'DU failure' }],
+    tests: [{ intervalHours, moves: [{ from: 'DU', to: 'OK', probability: 1 }] }],
+  };
+}
+
+/** Two identical channels voted 1oo2 as a state model: down only when both failed; one label for the DU failure mode. */
+function pairChain(lambda: number, intervalHours: number): MarkovModel {
+  return {
+    ...singleChain(lambda, intervalHours),
+    name: '1oo2, state model',
+    states: [{ id: 'OK', initial: 1 }, { id: 'ONE' }, { id: 'BOTH', down: true }],
+    transitions: [
+      { from: 'OK', to: 'ONE', rate: 2 * lambda, label: 'DU failure' },
+      { from: 'ONE', to: 'BOTH', rate: lambda, label: 'DU failure' },
+    ],
+    tests: [{ intervalHours, moves: [{ from: 'ONE', to: 'OK', probability: 1 }, { from: 'BOTH', to: 'OK', probability: 1 }] }],
+  };
+}
+
+describe('sensitivity and uncertainty of a state model', () => {
+  it('the interval sweep scales the tests and matches the closed form of the periodically tested channel (1e-6 relative)', async () => {
+    const lambda = 2e-6;
+    const target = { limit: 1e-2, inclusive: true };
+    const sweep = await intervalSweep(singleChain(lambda, 8760), { target, points: 8 });
+    expect(sweep.referenceHours).toBe(8760);
+    for (const point of sweep.points) expectRelative(point.value, singleAverage(lambda, point.intervalHours), 1e-6);
+    // The same function drawn as a fault tree meets the target up to the same interval.
+    const tree = await intervalSweep(single(lambda, 8760), { target, points: 8 });
+    expectRelative(sweep.longestMeetingHours as number, tree.longestMeetingHours as number, 1e-3);
+  });
+
+  it('scales every test of the main chain and of each part together, capped at the mission', () => {
+    const chain = singleChain(1e-6, 8760);
+    const valve = { id: 'VALVE', states: chain.states, transitions: chain.transitions, tests: [{ intervalHours: 4380, firstHours: 2190, moves: [{ from: 'DU', to: 'OK', probability: 1 }] }] };
+    const model: MarkovModel = { ...chain, parts: [valve] };
+    const scaled = withProofTestInterval(model, 17_520) as MarkovModel;
+    expect(scaled.tests?.[0].intervalHours).toBe(17_520);
+    expect(scaled.parts?.[0].tests?.[0]).toMatchObject({ intervalHours: 8760, firstHours: 4380 });
+    const capped = withProofTestInterval(model, 10 * MISSION) as MarkovModel;
+    expect([capped.tests?.[0].intervalHours, capped.parts?.[0].tests?.[0].intervalHours]).toEqual([MISSION, MISSION]);
+  });
+
+  it('the tornado varies each transition rate and the test interval: the closed form at lambda x/÷ 2 and at twice the interval (1e-6 relative)', async () => {
+    const lambda = 1e-6;
+    const result = await tornado(singleChain(lambda, 8760), { factor: 2 });
+    expect(result.bars.map((bar) => bar.parameter).sort()).toEqual(['proof test interval (all tests)', 'rate OK -> DU (DU failure)']);
+    expectRelative(result.base, singleAverage(lambda, 8760), 1e-6);
+    const rate = result.bars.find((bar) => bar.parameter.startsWith('rate'));
+    expectRelative(rate?.highValue as number, singleAverage(2 * lambda, 8760), 1e-6);
+    expectRelative(rate?.lowValue as number, singleAverage(lambda / 2, 8760), 1e-6);
+    const interval = result.bars.find((bar) => bar.parameter.startsWith('proof test'));
+    expectRelative(interval?.highValue as number, singleAverage(lambda, 17_520), 1e-6);
+  });
+
+  it('the uncertainty of one transition equals that of the same channel as a fault tree with error factor 3 and the same seed (1e-6 relative)', async () => {
+    const options = { target: { limit: 5e-3, inclusive: true }, samples: 200, seed: 5 };
+    const chain = await rateUncertainty(singleChain(1e-6, 8760), options);
+    const tree = await rateUncertainty(single(1e-6, 8760), options);
+    expect(chain.errorFactors).toEqual({ 'DU failure': 3 });
+    for (const key of ['p05', 'p50', 'p95', 'mean'] as const) expectRelative(chain[key], tree[key], 1e-6);
+    expect(chain.probabilityMeetingTarget).toBe(tree.probabilityMeetingTarget);
+  });
+
+  it('transitions with one label share one factor: the 1oo2 chain at the 95 % point is the chain at lambda x 3 (8 %, 2000 samples); independent factors would give about half', async () => {
+    const lambda = 2e-6;
+    const result = await rateUncertainty(pairChain(lambda, 8760), { target: { limit: 1e-3, inclusive: true }, samples: 2000, seed: 7 });
+    expect(Object.keys(result.errorFactors)).toEqual(['DU failure']);
+    // PFDavg of the chain rises with the shared factor, so its 95 % quantile is the chain at the factor's, EF = 3.
+    expectRelative(result.p95, evaluateMeasure(pairChain(3 * lambda, 8760)), 0.08);
+    expectRelative(result.p50, evaluateMeasure(pairChain(lambda, 8760)), 0.08);
   });
 });

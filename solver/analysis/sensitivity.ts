@@ -1,26 +1,48 @@
-import type { FaultTreeModel, RateEvent } from '../../shared/model-file.js';
+import type { FaultTreeModel, MarkovModel, MarkovTest, ModelFile, RateEvent } from '../../shared/model-file.js';
 import { isProbabilityEvent } from '../../shared/model-file.js';
 import { throwIfAborted } from '../common/abort.js';
 import { evaluateMeasure, meetsTarget, type MeasureTarget, type RepeatedSolveOptions } from './evaluate-measure.js';
 
-/** The longest proof test interval of the model's rate events, the reference of the sweep; undefined without tests. */
-export function referenceInterval(model: FaultTreeModel): number | undefined {
-  const intervals = model.events.flatMap((event) => (!isProbabilityEvent(event) && event.proofTest ? [event.proofTest.intervalHours] : []));
+/** The tests of a state model: the main chain's and each part's. */
+function markovTests(model: MarkovModel): MarkovTest[] {
+  return [...(model.tests ?? []), ...(model.parts ?? []).flatMap((part) => part.tests ?? [])];
+}
+
+/**
+ * The longest proof test interval of the model, the reference of the sweep; undefined without tests.
+ * A fault tree: of its rate events' proof tests. A state model: of its tests (main chain and parts).
+ */
+export function referenceInterval(model: ModelFile): number | undefined {
+  const intervals =
+    model.kind === 'markov'
+      ? markovTests(model).map((test) => test.intervalHours)
+      : model.events.flatMap((event) => (!isProbabilityEvent(event) && event.proofTest ? [event.proofTest.intervalHours] : []));
   return intervals.length > 0 ? Math.max(...intervals) : undefined;
 }
 
 /**
  * The model with every proof test interval (and first test) scaled by one factor so that the longest is
  * `hours`; intervals are capped at the mission. Returns undefined when a test would last as long as its
- * new interval.
+ * new interval. A state model's tests (partial ones too) scale the same way; their moves are unchanged.
  */
-export function withProofTestInterval(model: FaultTreeModel, hours: number): FaultTreeModel | undefined {
+export function withProofTestInterval<M extends ModelFile>(model: M, hours: number): M | undefined {
   const reference = referenceInterval(model);
   if (reference === undefined) return model;
   const factor = hours / reference;
   const mission = model.mission.hours;
+  if (model.kind === 'markov') {
+    const scale = (tests: readonly MarkovTest[] | undefined) =>
+      tests?.map((test) => ({
+        ...test,
+        intervalHours: Math.min(mission, test.intervalHours * factor),
+        firstHours: test.firstHours === undefined ? undefined : Math.min(mission, test.firstHours * factor),
+      }));
+    const markov: MarkovModel = model;
+    return { ...markov, tests: scale(markov.tests), parts: markov.parts?.map((part) => ({ ...part, tests: scale(part.tests) })) } as M;
+  }
+  const tree: FaultTreeModel = model as FaultTreeModel;
   let valid = true;
-  const events = model.events.map((event) => {
+  const events = tree.events.map((event) => {
     if (isProbabilityEvent(event) || !event.proofTest) return event;
     const test = event.proofTest;
     const intervalHours = Math.min(mission, test.intervalHours * factor);
@@ -29,7 +51,7 @@ export function withProofTestInterval(model: FaultTreeModel, hours: number): Fau
     const partialTest = event.partialTest && event.partialTest.intervalHours > intervalHours ? { ...event.partialTest, intervalHours, firstHours: undefined } : event.partialTest;
     return { ...event, proofTest: { ...test, intervalHours, firstHours }, partialTest } as RateEvent;
   });
-  return valid ? { ...model, events } : undefined;
+  return valid ? ({ ...tree, events } as M) : undefined;
 }
 
 export interface SweepPoint {
@@ -59,9 +81,10 @@ export interface SweepOptions extends RepeatedSolveOptions {
  * PFDavg (or PFH) against the proof test interval: a log-spaced sweep plus the model's own interval,
  * and the interval that just meets the target found by bisection on log(interval) between the last
  * swept point that meets it and the first that does not (PFDavg rises with the interval for a coherent
- * fault tree, Rausand & Hoyland, System Reliability Theory 2nd ed., ch. 10, from memory).
+ * fault tree, Rausand & Hoyland, System Reliability Theory 2nd ed., ch. 10, from memory; for a state
+ * model whose tests bring failed states back up it rises the same way, and the bisection assumes so).
  */
-export async function intervalSweep(model: FaultTreeModel, options: SweepOptions): Promise<IntervalSweep> {
+export async function intervalSweep(model: ModelFile, options: SweepOptions): Promise<IntervalSweep> {
   const reference = referenceInterval(model);
   if (reference === undefined) throw new RangeError('the model has no proof tests: there is no interval to sweep');
   const mission = model.mission.hours;
@@ -130,14 +153,19 @@ export interface Tornado {
 interface Variation {
   readonly parameter: string;
   readonly itemId: string | null;
-  readonly apply: (factor: number) => FaultTreeModel | undefined;
+  readonly apply: (factor: number) => ModelFile | undefined;
 }
 
 function replaceEvent(model: FaultTreeModel, id: string, change: (event: RateEvent) => RateEvent): FaultTreeModel {
   return { ...model, events: model.events.map((event) => (event.id === id && !isProbabilityEvent(event) ? change(event) : event)) };
 }
 
-function variations(model: FaultTreeModel): Variation[] {
+function intervalVariation(model: ModelFile): Variation[] {
+  const reference = referenceInterval(model);
+  return reference === undefined ? [] : [{ parameter: 'proof test interval (all tests)', itemId: null, apply: (factor) => withProofTestInterval(model, reference * factor) }];
+}
+
+function faultTreeVariations(model: FaultTreeModel): Variation[] {
   const list: Variation[] = [];
   for (const event of model.events) {
     if (isProbabilityEvent(event)) continue;
@@ -174,24 +202,46 @@ function variations(model: FaultTreeModel): Variation[] {
       }),
     });
   }
-  const reference = referenceInterval(model);
-  if (reference !== undefined) {
-    list.push({ parameter: 'proof test interval (all tests)', itemId: null, apply: (factor) => withProofTestInterval(model, reference * factor) });
-  }
-  return list;
+  return [...list, ...intervalVariation(model)];
 }
 
 /**
- * A tornado of one-at-a-time changes: each rate (lambdaDU, lambdaDD), each uncovered proof test part,
- * each beta factor and the interval of all proof tests divided and multiplied by `factor`, the others
- * held (common practice of one-way sensitivity). A change that makes the model invalid (a coverage below
- * the partial test's, a test longer than its interval) keeps the base value for that side.
+ * A state model's transition rates, one parameter each (main chain first, then each part, in file
+ * order): the rates are the state model's only failure and repair data. Test moves are left alone,
+ * since the moves out of a state must sum to 1 and a one-sided change has no meaning.
  */
-export async function tornado(model: FaultTreeModel, options: RepeatedSolveOptions & { readonly factor?: number } = {}): Promise<Tornado> {
+function markovVariations(model: MarkovModel): Variation[] {
+  const list: Variation[] = [];
+  const chains = [{ part: null as string | null, transitions: model.transitions }, ...(model.parts ?? []).map((part) => ({ part: part.id, transitions: part.transitions }))];
+  for (const { part, transitions } of chains) {
+    transitions.forEach((transition, index) => {
+      if (transition.rate <= 0) return;
+      const scaled = (factor: number) => transitions.map((item, position) => (position === index ? { ...item, rate: item.rate * factor } : item));
+      list.push({
+        parameter: `${part === null ? '' : `${part}: `}rate ${transition.from} -> ${transition.to}${transition.label ? ` (${transition.label})` : ''}`,
+        itemId: null,
+        apply: (factor) =>
+          part === null
+            ? { ...model, transitions: scaled(factor) }
+            : { ...model, parts: model.parts?.map((item) => (item.id === part ? { ...item, transitions: scaled(factor) } : item)) },
+      });
+    });
+  }
+  return [...list, ...intervalVariation(model)];
+}
+
+/**
+ * A tornado of one-at-a-time changes, the others held (common practice of one-way sensitivity), each
+ * divided and multiplied by `factor`. A fault tree: each rate (lambdaDU, lambdaDD), each uncovered proof
+ * test part, each beta factor and the interval of all proof tests. A state model: each transition rate
+ * and the interval of all tests. A change that makes the model invalid (a coverage below the partial
+ * test's, a test longer than its interval) keeps the base value for that side.
+ */
+export async function tornado(model: ModelFile, options: RepeatedSolveOptions & { readonly factor?: number } = {}): Promise<Tornado> {
   const factor = options.factor ?? 2;
   if (!(factor > 1)) throw new RangeError(`the tornado factor must be above 1 (got ${factor})`);
   const base = evaluateMeasure(model, options.signal);
-  const list = variations(model);
+  const list = model.kind === 'markov' ? markovVariations(model) : faultTreeVariations(model);
   const bars: TornadoBar[] = [];
   const total = list.length * 2;
   let done = 0;

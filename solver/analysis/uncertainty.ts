@@ -1,4 +1,4 @@
-import { isProbabilityEvent, type FaultTreeModel } from '../../shared/model-file.js';
+import { isProbabilityEvent, type FaultTreeModel, type MarkovModel, type MarkovTransition, type ModelFile } from '../../shared/model-file.js';
 import { throwIfAborted } from '../common/abort.js';
 import { createRandomStream, type RandomStream } from '../random/index.js';
 import { evaluateMeasure, meetsTarget, type MeasureTarget, type RepeatedSolveOptions } from './evaluate-measure.js';
@@ -52,23 +52,19 @@ export interface UncertaintyResult {
   readonly mean: number;
   /** Fraction of the sampled models that meet the target. */
   readonly probabilityMeetingTarget: number;
-  /** The error factor used per event id. */
+  /** The error factor used per sampled item: event id (fault tree) or transition label (state model). */
   readonly errorFactors: Readonly<Record<string, number>>;
   /** The sampled measures, sorted. */
   readonly values: Float64Array;
 }
 
-/**
- * Failure-rate uncertainty: each rate event's rates (lambdaDU, lambdaDD, lambdaS) are multiplied by one
- * lognormal factor with median 1 and the event's error factor (the stated rates are the medians), the
- * events independent; each sampled model is solved exactly. Gives the 5 / 50 / 95 % values of the
- * demand measure and the probability of meeting the target. Seeded: the same seed gives the same result.
- */
-export async function rateUncertainty(model: FaultTreeModel, options: UncertaintyOptions): Promise<UncertaintyResult> {
-  const samples = options.samples ?? 500;
-  const seed = options.seed ?? 1;
-  if (!Number.isInteger(samples) || samples < 10 || samples > 100_000) throw new RangeError(`samples must be a whole number from 10 to 100000 (got ${samples})`);
-  const random = createRandomStream(seed);
+/** One sampled model per call of `next`, and the error factor used per sampled item. */
+interface ModelSampler {
+  readonly errorFactors: Readonly<Record<string, number>>;
+  next(random: RandomStream): ModelFile;
+}
+
+function faultTreeSampler(model: FaultTreeModel): ModelSampler {
   const errorFactors: Record<string, number> = {};
   const sigmas = model.events.map((event) => {
     if (isProbabilityEvent(event)) return 0;
@@ -76,20 +72,76 @@ export async function rateUncertainty(model: FaultTreeModel, options: Uncertaint
     errorFactors[event.id] = errorFactor;
     return lognormalSigma(errorFactor);
   });
+  return {
+    errorFactors,
+    next(random) {
+      const events = model.events.map((event, index) => {
+        if (isProbabilityEvent(event)) return event;
+        const multiplier = Math.exp(sigmas[index] * standardNormal(random));
+        return {
+          ...event,
+          lambdaDU: event.lambdaDU * multiplier,
+          lambdaDD: event.lambdaDD === undefined ? undefined : event.lambdaDD * multiplier,
+          lambdaS: event.lambdaS === undefined ? undefined : event.lambdaS * multiplier,
+        };
+      });
+      return { ...model, events };
+    },
+  };
+}
+
+/**
+ * A state model file states no error factors, so every rate gets DEFAULT_ERROR_FACTOR. Transitions of
+ * one chain with the same label share one factor: a label such as "DU failure" names one failure mode
+ * that the chain counts in several states (2 lambda out of OK, lambda out of one-failed), and sampling
+ * those apart would treat one device's rate as several independent ones. Unlabelled transitions get a
+ * factor each.
+ */
+function markovSampler(model: MarkovModel): ModelSampler {
+  const sigma = lognormalSigma(DEFAULT_ERROR_FACTOR);
+  const errorFactors: Record<string, number> = {};
+  const chains = [{ prefix: '', transitions: model.transitions }, ...(model.parts ?? []).map((part) => ({ prefix: `${part.id}: `, transitions: part.transitions }))];
+  const groupsOf = chains.map(({ prefix, transitions }) =>
+    transitions.map((transition) => {
+      const group = `${prefix}${transition.label ?? `${transition.from} -> ${transition.to}`}`;
+      errorFactors[group] = DEFAULT_ERROR_FACTOR;
+      return group;
+    }),
+  );
+  const groups = Object.keys(errorFactors);
+  return {
+    errorFactors,
+    next(random) {
+      const multipliers = new Map(groups.map((group) => [group, Math.exp(sigma * standardNormal(random))]));
+      const sampled = (transitions: readonly MarkovTransition[], chain: number) =>
+        transitions.map((transition, index) => ({ ...transition, rate: transition.rate * (multipliers.get(groupsOf[chain][index]) as number) }));
+      return {
+        ...model,
+        transitions: sampled(model.transitions, 0),
+        parts: model.parts?.map((part, index) => ({ ...part, transitions: sampled(part.transitions, index + 1) })),
+      };
+    },
+  };
+}
+
+/**
+ * Failure-rate uncertainty: the rates are multiplied by lognormal factors with median 1 (the stated
+ * rates are the medians), the factors independent, and each sampled model is solved exactly. A fault
+ * tree: one factor per rate event for its lambdaDU, lambdaDD and lambdaS, with the event's error factor.
+ * A state model: one factor per transition label (see markovSampler), error factor 3. Gives the
+ * 5 / 50 / 95 % values of the demand measure and the probability of meeting the target. Seeded: the
+ * same seed gives the same result.
+ */
+export async function rateUncertainty(model: ModelFile, options: UncertaintyOptions): Promise<UncertaintyResult> {
+  const samples = options.samples ?? 500;
+  const seed = options.seed ?? 1;
+  if (!Number.isInteger(samples) || samples < 10 || samples > 100_000) throw new RangeError(`samples must be a whole number from 10 to 100000 (got ${samples})`);
+  const random = createRandomStream(seed);
+  const sampler = model.kind === 'markov' ? markovSampler(model) : faultTreeSampler(model);
   const values = new Float64Array(samples);
   let met = 0;
   for (let sample = 0; sample < samples; sample++) {
-    const events = model.events.map((event, index) => {
-      if (isProbabilityEvent(event)) return event;
-      const multiplier = Math.exp(sigmas[index] * standardNormal(random));
-      return {
-        ...event,
-        lambdaDU: event.lambdaDU * multiplier,
-        lambdaDD: event.lambdaDD === undefined ? undefined : event.lambdaDD * multiplier,
-        lambdaS: event.lambdaS === undefined ? undefined : event.lambdaS * multiplier,
-      };
-    });
-    const value = evaluateMeasure({ ...model, events }, options.signal);
+    const value = evaluateMeasure(sampler.next(random), options.signal);
     values[sample] = value;
     if (meetsTarget(value, options.target)) met++;
     options.onProgress?.((sample + 1) / samples);
@@ -106,7 +158,7 @@ export async function rateUncertainty(model: FaultTreeModel, options: Uncertaint
     p95: quantile(values, 0.95),
     mean,
     probabilityMeetingTarget: met / samples,
-    errorFactors,
+    errorFactors: sampler.errorFactors,
     values,
   };
 }

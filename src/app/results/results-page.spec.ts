@@ -9,7 +9,7 @@ import { RouterTestingHarness } from '@angular/router/testing';
 import { resultAnalysis, type ResultAnalysis } from '../../../shared/api/results.js';
 import { deriveSifTarget } from '../../../shared/api/sif-target.js';
 import { solve } from '../../../shared/api/solves.js';
-import type { FaultTreeModel } from '../../../shared/model-file.js';
+import type { FaultTreeModel, MarkovModel, ModelFile } from '../../../shared/model-file.js';
 import { silReached } from '../../../shared/sil.js';
 import { architecturalConstraints, silClaim, spuriousTripRate } from '../../../solver/analysis/index.js';
 import { solveModel } from '../../../solver/index.js';
@@ -53,10 +53,10 @@ function createModel(valveLambda: number): FaultTreeModel {
   };
 }
 
-const solved = new Map<FaultTreeModel, ReturnType<typeof build>>();
+const solved = new Map<ModelFile, ReturnType<typeof build>>();
 
 /** Each model is solved once per run (the solve is the slow part of these specs). */
-function fixtures(file: FaultTreeModel) {
+function fixtures(file: ModelFile) {
   const known = solved.get(file);
   if (known) return known;
   const built = build(file);
@@ -64,11 +64,11 @@ function fixtures(file: FaultTreeModel) {
   return built;
 }
 
-function build(file: FaultTreeModel) {
+function build(file: ModelFile) {
   const result = solveModel(file, { timePoints: 200 });
   const check = deriveSifTarget({ kind: 'sil', value: 2 }, 'low');
   if (!check.ok) throw new Error(check.issue.message);
-  const constraints = architecturalConstraints(file);
+  const constraints = file.kind === 'fault-tree' ? architecturalConstraints(file) : null;
   const analysis: ResultAnalysis = resultAnalysis.parse({
     solveId: SOLVE_ID,
     modelId: MODEL_ID,
@@ -77,8 +77,8 @@ function build(file: FaultTreeModel) {
     model: file,
     constraints,
     claim: silClaim({ probabilitySil: silReached(result.pfdAvg, 'low'), demand: 'low', measureText: `PFDavg ${result.pfdAvg}`, constraints }),
-    spuriousTrip: spuriousTripRate(file),
-    methods: [{ solveId: SOLVE_ID, method: 'exact', engine: 'fault-tree', algorithm: result.algorithm, pfdAvg: result.pfdAvg, pfh: result.pfh, interval: null, samples: null }],
+    spuriousTrip: file.kind === 'fault-tree' ? spuriousTripRate(file) : null,
+    methods: [{ solveId: SOLVE_ID, method: 'exact', engine: result.method, algorithm: result.algorithm, pfdAvg: result.pfdAvg, pfh: result.pfh, interval: null, samples: null }],
     notes: [],
   });
   const record = solve.parse({
@@ -110,7 +110,7 @@ function build(file: FaultTreeModel) {
 describe('ResultsPage', { timeout: 30_000 }, () => {
   let http: HttpTestingController;
 
-  async function open(file: FaultTreeModel) {
+  async function open(file: ModelFile) {
     TestBed.configureTestingModule({
       providers: appTestProviders([{ path: 'projects/:projectId/sifs/:sifId/models/:modelId/results/:solveId', component: ResultsPage }]),
     });
@@ -169,5 +169,22 @@ describe('ResultsPage', { timeout: 30_000 }, () => {
     expect(focus.highlighted()).toEqual(['VALVES']);
     element.querySelector<HTMLElement>('[data-cut-sets] tbody tr:nth-child(3)')?.click();
     expect(focus.highlighted().length).toBe(2);
+  });
+
+  it('a state model: says why it has no architectural constraints and offers the sensitivity and uncertainty', async () => {
+    const chain: MarkovModel = {
+      format: 'proofline/model',
+      version: 1,
+      name: 'Spec chain',
+      mission: { hours: 87_600, demand: 'low' },
+      kind: 'markov',
+      states: [{ id: 'OK', initial: 1 }, { id: 'DU', down: true }],
+      transitions: [{ from: 'OK', to: 'DU', rate: 2e-6 }],
+      tests: [{ intervalHours: 8760, moves: [{ from: 'DU', to: 'OK', probability: 1 }] }],
+    };
+    const { element } = await open(chain);
+    expect(element.querySelector('[data-constraints-unavailable]')?.textContent).toContain('A state model does not give the architectural constraints');
+    expect(element.querySelector('[data-constraints]')).toBeNull();
+    expect(element.querySelector('pl-sensitivity-panel')).not.toBeNull();
   });
 });

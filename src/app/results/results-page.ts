@@ -107,10 +107,6 @@ export class ResultsPage {
       (value) => formatPercent(value),
     );
   });
-  protected readonly faultTree = computed(() => {
-    const model = this.loaded()?.analysis.model;
-    return model?.kind === 'fault-tree' ? model : null;
-  });
   protected readonly measureTarget = computed(() => {
     const verdict = this.verdict();
     return verdict && verdict.target !== null ? { limit: verdict.target, inclusive: verdict.limitInclusive } : null;

@@ -5,14 +5,14 @@ import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { NgxEchartsDirective } from 'ngx-echarts';
-import type { FaultTreeModel } from '../../../shared/model-file.js';
+import type { ModelFile } from '../../../shared/model-file.js';
 import type { MeasureTarget } from '../../../solver/analysis/evaluate-measure.js';
 import { referenceInterval } from '../../../solver/analysis/sensitivity.js';
 import { sweepChartOptions, tornadoChartOptions } from './chart-options';
 import { SensitivityRunner } from './sensitivity-runner';
 import { formatMeasure, formatPercent } from './verdict';
 
-/** Sensitivity (interval sweep, tornado) and failure-rate uncertainty of the solved fault tree, run on request. */
+/** Sensitivity (interval sweep, tornado) and failure-rate uncertainty of the solved model (fault tree or state model), run on request. */
 @Component({
   selector: 'pl-sensitivity-panel',
   imports: [FormsModule, MatButton, MatFormField, MatLabel, MatInput, MatProgressBar, NgxEchartsDirective],
@@ -24,7 +24,7 @@ import { formatMeasure, formatPercent } from './verdict';
 export class SensitivityPanel {
   protected readonly runner = inject(SensitivityRunner);
 
-  readonly model = input.required<FaultTreeModel>();
+  readonly model = input.required<ModelFile>();
   readonly target = input.required<MeasureTarget | null>();
   readonly measureName = input.required<string>();
 

@@ -1,5 +1,5 @@
 import { Injectable, computed, signal } from '@angular/core';
-import type { FaultTreeModel } from '../../../shared/model-file.js';
+import type { ModelFile } from '../../../shared/model-file.js';
 import type { MeasureTarget } from '../../../solver/analysis/evaluate-measure.js';
 import { intervalSweep, referenceInterval, tornado, type IntervalSweep, type Tornado } from '../../../solver/analysis/sensitivity.js';
 import { rateUncertainty, type UncertaintyResult } from '../../../solver/analysis/uncertainty.js';
@@ -14,9 +14,9 @@ export interface SensitivitySettings {
 }
 
 /**
- * Runs the sensitivity sweep, the tornado and the rate uncertainty of a fault tree in the browser
+ * Runs the sensitivity sweep, the tornado and the rate uncertainty of a fault tree or a state model in the browser
  * (solver/analysis). Why here and not on the server: each run is a few hundred solves of one small
- * model (under a millisecond to a few milliseconds each for a SIF-sized tree), it needs no database, and
+ * model (under a millisecond to a few milliseconds each for a SIF-sized tree or chain), it needs no database, and
  * running it here keeps the API thread and the shared solver processes free. The work is cut into
  * slices of about 40 ms with a yield between, so the page stays responsive; the user can stop it.
  * Provided by the results page.
@@ -41,7 +41,7 @@ export class SensitivityRunner {
   readonly error = this.failure.asReadonly();
   readonly running = computed(() => this.state() === 'running');
 
-  async run(model: FaultTreeModel, target: MeasureTarget, settings: SensitivitySettings): Promise<void> {
+  async run(model: ModelFile, target: MeasureTarget, settings: SensitivitySettings): Promise<void> {
     this.stop();
     const controller = new AbortController();
     this.controller = controller;
