@@ -16,6 +16,12 @@ export const routes: Routes = [
     loadComponent: () => import('./canvas/bench/canvas-bench').then((m) => m.CanvasBench),
   },
   {
+    // The 10,000-point results chart benchmark (scripts/bench-chart.ts); synthetic data, no API calls.
+    path: 'chart-bench',
+    title: 'Chart benchmark · Proofline',
+    loadComponent: () => import('./results/bench/chart-bench').then((m) => m.ChartBench),
+  },
+  {
     path: '',
     canActivate: [signedInGuard],
     loadComponent: () => import('./shell/shell').then((m) => m.Shell),
