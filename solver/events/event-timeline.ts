@@ -39,8 +39,13 @@ interface CompiledMode {
   readonly starts: Float64Array;
   /** 1 - P(working) at each phase start, after the test's jump. */
   readonly notWorking: Float64Array;
-  /** P(under repair) at each phase start, after the test's jump. */
-  readonly repairing: Float64Array;
+  /**
+   * P(under repair) at the phase start times mu / (mu - lambda), the factor of the repaired share
+   * (e^{-lambda s} - e^{-mu s}) in q(t); precomputed so that no division is left per time point.
+   */
+  readonly repairFactor: Float64Array;
+  /** Whether mu and lambda are equal to 1e-12 relative, where the repaired share is mu s e^{-lambda s}. */
+  readonly equalRates: boolean;
 }
 
 /** A compiled event, ready to be evaluated at many times. */
@@ -121,7 +126,9 @@ export function compileEventTimeline(spec: EventTimelineSpec): EventTimeline {
       repairing[phase] = notWorking[phase];
       breakpoints.push(starts[phase]);
     }
-    modes.push({ lambda: mode.lambda, starts, notWorking, repairing });
+    const equalRates = mu !== Infinity && Math.abs(mu - mode.lambda) <= 1e-12 * mu;
+    const repairFactor = repairing.map((value) => (mu === Infinity || value === 0 ? 0 : equalRates ? value : (value * mu) / (mu - mode.lambda)));
+    modes.push({ lambda: mode.lambda, starts, notWorking, repairFactor, equalRates });
   }
   const windowStarts = new Float64Array(spec.downWindows.map((window) => window[0]));
   const windowEnds = new Float64Array(spec.downWindows.map((window) => window[1]));
@@ -158,9 +165,46 @@ function begun(start: number, t: number, fromLeft: boolean): boolean {
 }
 
 /**
+ * Adds one revealed DU mode's unavailability to q at each time: q <- q + q_m - q q_m (the event is failed
+ * when any of its independent modes is). Between reveal times, with s the time since the phase start,
+ * q_m = 1 - (1 - notWorking) e^{-lambda s} - factor (e^{-lambda s} - e^{-mu s}) (the three-state chain's
+ * closed form, see repairedShare). One loop per mode over every time keeps the loop small for the JIT;
+ * the phase moves forward with the (usually sorted) times and is searched only when they step back.
+ */
+function addRevealedMode(mode: CompiledMode, mu: number, times: Float64Array, q: Float64Array, offset: number, fromLeft: Uint8Array | undefined): void {
+  const { starts, notWorking, repairFactor, lambda, equalRates } = mode;
+  const last = starts.length - 1;
+  const repairHorizon = mu === Infinity ? 0 : NEGLIGIBLE_EXPONENT / mu;
+  let phase = 0;
+  let previous = -Infinity;
+  for (let j = 0; j < times.length; j++) {
+    const t = times[j];
+    const left = fromLeft !== undefined && fromLeft[j] === 1;
+    if (t < previous) phase = phaseIndex(starts, t, left);
+    previous = t;
+    while (phase < last && begun(starts[phase + 1], t, left)) phase++;
+    while (phase > 0 && !begun(starts[phase], t, left)) phase--;
+    const s = t - starts[phase];
+    const down = notWorking[phase];
+    const lambdaTerm = expm1Small(-lambda * s);
+    let qm = down - (1 - down) * lambdaTerm;
+    const factor = repairFactor[phase];
+    if (factor !== 0) {
+      const decayLambda = 1 + lambdaTerm;
+      if (equalRates) qm -= factor * mu * s * decayLambda;
+      else qm -= factor * (s < repairHorizon ? decayLambda - Math.exp(-mu * s) : decayLambda);
+    }
+    const at = offset + j;
+    const value = q[at];
+    q[at] = value + qm - value * qm;
+  }
+}
+
+/**
  * Writes q(t) (and, when wanted, w(t), the frequency of DU failures = lambdaDU (1 - q(t)) outside test
- * windows) of one event at each time into out arrays at the given offset.
+ * windows) of one event at each time into out arrays at the given offsets.
  * @param fromLeft when given, a 1 at index j asks for the left limit q(t-) at times[j].
+ * @param wOffset where the event's row starts in wOut (default: offset).
  */
 export function evaluateEventTimeline(
   timeline: EventTimeline,
@@ -169,72 +213,54 @@ export function evaluateEventTimeline(
   offset: number,
   wOut?: Float64Array,
   fromLeft?: Uint8Array,
+  wOffset = offset,
 ): void {
   const count = times.length;
   if (timeline.constant !== undefined) {
     qOut.fill(timeline.constant, offset, offset + count);
-    if (wOut) wOut.fill(0, offset, offset + count);
+    if (wOut) wOut.fill(0, wOffset, wOffset + count);
     return;
   }
   const sumRate = timeline.lambdaDD + timeline.mu;
   const ddLevel = timeline.mu === Infinity ? 0 : timeline.lambdaDD / sumRate;
-  const modes = timeline.modes;
-  // Times usually come sorted: each mode keeps its current phase and moves forward, with a binary search
-  // only when the times step back.
-  const phases = new Int32Array(modes.length);
+  if (ddLevel > 0) {
+    // The DD chain has reached its steady state within rounding beyond exp(-40).
+    const settled = NEGLIGIBLE_EXPONENT / sumRate;
+    for (let j = 0; j < count; j++) {
+      const t = times[j];
+      qOut[offset + j] = t >= settled ? ddLevel : ddLevel * -Math.expm1(-sumRate * t);
+    }
+  } else {
+    qOut.fill(0, offset, offset + count);
+  }
+  for (const mode of timeline.modes) addRevealedMode(mode, timeline.mu, times, qOut, offset, fromLeft);
+  const hidden = timeline.lambdaNeverRevealed;
+  if (hidden > 0) {
+    for (let j = 0; j < count; j++) {
+      const qn = -expm1Small(-hidden * times[j]);
+      const value = qOut[offset + j];
+      qOut[offset + j] = value + qn - value * qn;
+    }
+  }
+  if (wOut) {
+    const lambdaDU = timeline.lambdaDU;
+    for (let j = 0; j < count; j++) wOut[wOffset + j] = lambdaDU * (1 - qOut[offset + j]);
+  }
   const windowStarts = timeline.windowStarts;
+  if (windowStarts.length === 0) return;
   const windowEnds = timeline.windowEnds;
   let window = -1;
   let previous = -Infinity;
   for (let j = 0; j < count; j++) {
     const t = times[j];
     const left = fromLeft !== undefined && fromLeft[j] === 1;
-    if (t < previous) {
-      for (let m = 0; m < modes.length; m++) phases[m] = phaseIndex(modes[m].starts, t, left);
-      window = phaseIndex(windowStarts, t, left) - (windowStarts.length > 0 && begun(windowStarts[0], t, left) ? 0 : 1);
-    }
+    if (t < previous) window = phaseIndex(windowStarts, t, left) - (begun(windowStarts[0], t, left) ? 0 : 1);
     previous = t;
-    if (windowStarts.length > 0) {
-      while (window + 1 < windowStarts.length && begun(windowStarts[window + 1], t, left)) window++;
-      while (window >= 0 && !begun(windowStarts[window], t, left)) window--;
-      if (window >= 0 && (left ? t <= windowEnds[window] : t < windowEnds[window])) {
-        qOut[offset + j] = 1;
-        if (wOut) wOut[offset + j] = 0;
-        continue;
-      }
+    while (window + 1 < windowStarts.length && begun(windowStarts[window + 1], t, left)) window++;
+    while (window >= 0 && !begun(windowStarts[window], t, left)) window--;
+    if (window >= 0 && (left ? t <= windowEnds[window] : t < windowEnds[window])) {
+      qOut[offset + j] = 1;
+      if (wOut) wOut[wOffset + j] = 0;
     }
-    let q = 0;
-    if (ddLevel > 0) {
-      const exponent = sumRate * t;
-      q = exponent > NEGLIGIBLE_EXPONENT ? ddLevel : ddLevel * -Math.expm1(-exponent);
-    }
-    for (let m = 0; m < modes.length; m++) {
-      const mode = modes[m];
-      const starts = mode.starts;
-      let phase = phases[m];
-      while (phase + 1 < starts.length && begun(starts[phase + 1], t, left)) phase++;
-      while (phase > 0 && !begun(starts[phase], t, left)) phase--;
-      phases[m] = phase;
-      const s = t - starts[phase];
-      const notWorking = mode.notWorking[phase];
-      const lambdaTerm = expm1Small(-mode.lambda * s);
-      let qm = notWorking - (1 - notWorking) * lambdaTerm;
-      const repairing = mode.repairing[phase];
-      if (repairing > 0) {
-        // repairedShare() with e^{-lambda s} reused from the expm1 above.
-        const decayLambda = 1 + lambdaTerm;
-        const mu = timeline.mu;
-        const muS = mu * s;
-        const decayMu = muS > NEGLIGIBLE_EXPONENT ? 0 : Math.exp(-muS);
-        qm -= repairing * (Math.abs(mu - mode.lambda) <= 1e-12 * mu ? muS * decayLambda : (mu * (decayLambda - decayMu)) / (mu - mode.lambda));
-      }
-      q += qm - q * qm;
-    }
-    if (timeline.lambdaNeverRevealed > 0) {
-      const qn = -expm1Small(-timeline.lambdaNeverRevealed * t);
-      q += qn - q * qn;
-    }
-    qOut[offset + j] = q;
-    if (wOut) wOut[offset + j] = timeline.lambdaDU * (1 - q);
   }
 }

@@ -3,7 +3,6 @@ import { describe, expect, it } from 'vitest';
 import type { Gate } from '../../shared/model-file.js';
 import { kronrodOnPartition } from '../common/quadrature.js';
 import { FaultTreeEngine } from './engine.js';
-import { backwardPass, forwardPass, variableMatrix } from './evaluate.js';
 import { channel, faultTree } from './test-models.js';
 
 // Fixed seed so that a failure can be replayed.
@@ -52,39 +51,12 @@ const randomTimedTree = fc
     return faultTree({ missionHours: 8760, events, gates, top: `G${gates.length - 1}` });
   });
 
-/**
- * The reference evaluation: at every quadrature time, the full Birnbaum matrix of the backward pass, then
- * the weighted sums per variable and per time (Rauzy 1993; the backward pass of Dutuit & Rauzy 2001).
- */
-function referenceIntegrals(engine: FaultTreeEngine, times: Float64Array, weights: Float64Array) {
-  const count = times.length;
-  const { q, w } = variableMatrix(engine.variables.rows, times, true);
-  const values = new Float64Array(engine.diagram.size * count);
-  forwardPass(engine.diagram, q, count, values);
-  const variableCount = engine.variables.variables.length;
-  const birnbaum = new Float64Array(variableCount * count);
-  backwardPass(engine.diagram, q, count, values, new Float64Array(engine.diagram.size * count), birnbaum);
-  const birnbaumIntegral = new Float64Array(variableCount);
-  const qTimesBirnbaumIntegral = new Float64Array(variableCount);
-  const frequency = new Float64Array(count);
-  for (let v = 0; v < variableCount; v++) {
-    const row = engine.variables.rowOf[v] * count;
-    for (let j = 0; j < count; j++) {
-      const b = birnbaum[v * count + j];
-      birnbaumIntegral[v] += weights[j] * b;
-      qTimesBirnbaumIntegral[v] += weights[j] * b * q[row + j];
-      frequency[j] += b * (w as Float64Array)[row + j];
-    }
-  }
-  return { birnbaumIntegral, qTimesBirnbaumIntegral, frequency };
-}
-
 function close(actual: number, expected: number): boolean {
   return Math.abs(actual - expected) <= RELATIVE * Math.abs(expected);
 }
 
 describe('PFDavg, PFH and importance from one shared pass (fast-check, seeded)', () => {
-  it('equal the adaptive PFDavg, the separate PFH pass on its partition and the per-time Birnbaum matrix, to 1e-12 relative', () => {
+  it('equal the adaptive PFDavg, the separate PFH pass on its partition and one diagram of the whole tree without modules, to 1e-12 relative', () => {
     fc.assert(
       fc.property(randomTimedTree, (model) => {
         const engine = new FaultTreeEngine(model);
@@ -97,12 +69,39 @@ describe('PFDavg, PFH and importance from one shared pass (fast-check, seeded)',
         expect(close(shared.pfh, referenceFrequency.pfh)).toBe(true);
         shared.averages.birnbaum.forEach((value, index) => expect(close(value, referenceFrequency.averages.birnbaum[index])).toBe(true));
         shared.averages.qTimesBirnbaum.forEach((value, index) => expect(close(value, referenceFrequency.averages.qTimesBirnbaum[index])).toBe(true));
-        const direct = referenceIntegrals(engine, shared.rule.times, shared.rule.weights);
-        shared.averages.birnbaum.forEach((value, index) => expect(close(value, direct.birnbaumIntegral[index])).toBe(true));
-        shared.averages.qTimesBirnbaum.forEach((value, index) => expect(close(value, direct.qTimesBirnbaumIntegral[index])).toBe(true));
-        expect(close(shared.pfh, shared.rule.integrate(direct.frequency).integral / model.mission.hours)).toBe(true);
+        // The reference diagram: one diagram of the whole tree, no modules (a different diagram, the same function).
+        const whole = new FaultTreeEngine(model, { modular: false });
+        const direct = whole.frequencyAndImportance(shared.rule);
+        const variableCount = engine.variables.variables.length;
+        for (let index = 0; index < variableCount; index++) {
+          expect(close(shared.averages.birnbaum[index], direct.averages.birnbaum[index])).toBe(true);
+          expect(close(shared.averages.qTimesBirnbaum[index], direct.averages.qTimesBirnbaum[index])).toBe(true);
+        }
+        expect(close(shared.pfh, direct.pfh)).toBe(true);
+        expect(close(shared.pfdAvg, direct.pfdAvg)).toBe(true);
       }),
       { seed: SEED, numRuns: 40 },
+    );
+  });
+
+  it('gate importance: modules from the backward pass and other gates from their rebuilt module equal the whole tree rebuilt per gate, to 1e-12 relative', () => {
+    fc.assert(
+      fc.property(randomTimedTree, (model) => {
+        const gateIds = model.gates.map((gate) => gate.id);
+        const [modular, whole] = [true, false].map((split) => {
+          const engine = new FaultTreeEngine(model, { modular: split });
+          const fixed = engine.fixedGates(gateIds)!;
+          const rule = kronrodOnPartition(engine.quadratureEdges);
+          return engine.gateAverages(engine.frequencyAndImportance(rule, undefined, fixed), fixed, gateIds);
+        });
+        gateIds.forEach((_, index) => {
+          const [split, reference] = [modular[index], whole[index]];
+          expect(split && reference).toBeDefined();
+          expect(close(split!.failed, reference!.failed)).toBe(true);
+          expect(Math.abs(split!.working - reference!.working)).toBeLessThanOrEqual(RELATIVE * reference!.failed);
+        });
+      }),
+      { seed: SEED, numRuns: 60 },
     );
   });
 
