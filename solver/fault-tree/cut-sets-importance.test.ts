@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { solveModel } from '../index.js';
 import { faultTree, votedGroup } from './test-models.js';
 
-describe('minimal cut sets through the gates (Fault Tree Handbook NUREG-0492 cut-set algebra)', () => {
+describe('minimal cut sets from the decision diagram (Rauzy 1993 minimal solutions; expected sets by the Boolean algebra of the tree)', () => {
   it('2oo3 with a beta group: the shared event alone and the three pairs', () => {
     const result = solveModel(votedGroup(3, 2, { lambdaDU: 1e-6, intervalHours: 8760, missionHours: 87600, beta: 0.05 }));
     const sets = result.cutSets.map((cutSet) => [...cutSet.events].sort().join('+')).sort();

@@ -4,9 +4,9 @@ import { integrateAdaptive, kronrodOnPartition, type PartitionRule } from '../co
 import { curveTimes } from '../common/time-grid.js';
 import { BddNodeLimitError } from './bdd.js';
 import { buildTree, type BuiltTree } from './build.js';
-import { cutSetBounds, type CutSetBoundOptions, type CutSetBounds } from './cut-set-bounds.js';
 import { attach, backwardIntegrals, fillTimelines, flatten, forwardAttached, forwardPass, variableMatrix, type AttachedDiagram, type FlatDiagram } from './evaluate.js';
 import type { EventTimeline } from '../events/event-timeline.js';
+import { minimalCutSets, type MinimalCutSetOptions, type MinimalCutSets } from './minimal-cut-sets.js';
 import { compileVariables, type TreeVariables } from './variables.js';
 
 /** Target of the summed Kronrod-Gauss error estimate, relative; the stated bound is 1e-6. */
@@ -337,9 +337,9 @@ export class FaultTreeEngine {
     });
   }
 
-  /** Minimal cut sets through the gates, dropping sets whose product of values is below the cutoff. */
-  cutSets(values: Float64Array, options: CutSetBoundOptions = {}): CutSetBounds {
-    return cutSetBounds(this.model, this.variables, values, options);
+  /** Minimal cut sets from the modules' diagrams (see minimalCutSets), ranked by the values given. */
+  cutSets(values: Float64Array, options: MinimalCutSetOptions = {}): MinimalCutSets {
+    return minimalCutSets(this.tree, this.variables.variables.length, values, options);
   }
 
   /** Each variable's mean unavailability on a coarse grid (200 points and every breakpoint), for ranking. */

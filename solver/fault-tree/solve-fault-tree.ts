@@ -20,6 +20,8 @@ export const GATE_IMPORTANCE_BUDGET = 6e7;
 
 /** Cut sets whose product of mean unavailabilities is below this share of PFDavg are not listed. */
 export const CUT_SET_CUTOFF = 1e-8;
+/** Most minimal cut sets listed from the diagram; beyond, the cutoff is raised tenfold until they fit. */
+export const MAX_CUT_SETS = 50_000;
 /** Most cut sets whose time-averaged probability is integrated. */
 export const CUT_SETS_INTEGRATED = 2000;
 
@@ -78,9 +80,14 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
   // a listing threshold, and lets the quadrature times be evaluated once for PFDavg, PFH and importance.
   const curveMean = trapezoidMean(curve.hours, curve.pfd);
   const means = engine.meanUnavailability();
-  const enumerated = engine.cutSets(means, { cutoff: Math.max(1e-300, CUT_SET_CUTOFF * curveMean) });
-  if (enumerated.truncated) {
-    warnings.push(`minimal cut sets above order ${enumerated.maxOrder} or with a product of mean unavailabilities below ${enumerated.cutoff.toExponential(1)} are not listed`);
+  const requestedCutoff = Math.max(1e-300, CUT_SET_CUTOFF * curveMean);
+  const enumerated = engine.cutSets(means, { cutoff: requestedCutoff, maxSets: MAX_CUT_SETS });
+  if (!enumerated.complete) {
+    warnings.push('minimal cut sets not listed: their zero-suppressed decision diagram needs more than 2,000,000 nodes');
+  } else if (enumerated.truncated) {
+    warnings.push(
+      `minimal cut sets (from the decision diagram) above order ${enumerated.maxOrder} or with a product of mean unavailabilities below ${enumerated.cutoff.toExponential(1)} are not listed${enumerated.cutoff > requestedCutoff ? ` (the cutoff was raised from ${requestedCutoff.toExponential(1)} to keep the list under ${MAX_CUT_SETS.toLocaleString('en-US')} sets)` : ''}; PFDavg, PFH and importance are exact and do not depend on the list`,
+    );
   }
   const ranked = enumerated.sets
     .map((set) => ({ set, product: set.reduce((product, variable) => product * means[variable], 1) }))
