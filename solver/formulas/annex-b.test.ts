@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { solveModel } from '../index.js';
-import { votedGroup } from '../fault-tree/test-models.js';
+import { channel, faultTree, votedGroup } from '../fault-tree/test-models.js';
 import { annexBPfdAvg, annexBPfh, channelDownTime, groupDownTime, imperfectTestPfdAvg, secondGroupDownTime } from './annex-b.js';
 import { PDS_C_MOON, pdsFactor, pdsPfdAvg } from './pds.js';
 
@@ -74,6 +74,30 @@ describe('IEC 61508-6:2010 Annex B equations (tolerance 1e-9 relative)', () => {
     }
   });
 
+  it('Table B.2 cells, independent cross-check: the exact engine (a 1oo1 over 10 test intervals) rounds to the same two figures, below the formula by under 0.2 %', () => {
+    // The cells are from memory; the exact engine does not use them or the Annex B equations, so agreement
+    // to the printed figures checks the recalled cells. Lambda tau <= 2.2e-3 here, well inside the domain
+    // where the equation overstates the exact value by about lambda tau / 3 (Rausand & Hoyland).
+    const cells: [number, number, number][] = [
+      [0.1e-6, 0, 1.1e-4],
+      [0.1e-6, 0.6, 4.4e-5],
+      [0.1e-6, 0.9, 1.1e-5],
+      [0.1e-6, 0.99, 1.5e-6],
+      [1e-6, 0, 1.1e-3],
+      [1e-6, 0.6, 4.4e-4],
+      [1e-6, 0.9, 1.1e-4],
+      [1e-6, 0.99, 1.5e-5],
+    ];
+    for (const [lambda, coverage, cell] of cells) {
+      const rates = { lambdaDU: (lambda / 2) * (1 - coverage), lambdaDD: (lambda / 2) * coverage };
+      const exact = solveModel(faultTree({ missionHours: 43800, events: [channel('X', { ...rates, mttrHours: 8, intervalHours: 4380 })], top: 'X' })).pfdAvg;
+      const formula = annexBPfdAvg('1oo1', { ...rates, proofTestIntervalHours: 4380, mttrHours: 8 });
+      expect(Number(exact.toPrecision(2)), `lambda ${lambda}, DC ${coverage}`).toBe(cell);
+      expect(exact).toBeLessThan(formula);
+      expect(relative(exact, formula)).toBeLessThan(2e-3);
+    }
+  });
+
   it('the partial and imperfect test approximation reduces to B.3.2.2.1 with full coverage and no partial test', () => {
     const plain = imperfectTestPfdAvg({ lambdaDU: 5e-7, lambdaDD: 2e-6, mttrHours: 8, proofTestIntervalHours: 8760, proofTestCoverage: 1, missionHours: 87600 });
     expect(relative(plain, annexBPfdAvg('1oo1', { lambdaDU: 5e-7, lambdaDD: 2e-6, proofTestIntervalHours: 8760, mttrHours: 8 }))).toBeLessThan(1e-12);
@@ -101,6 +125,25 @@ describe('PDS method (PDS method handbook 2013, table and formula from memory)',
     for (const [m, n, architecture] of pairs) {
       const pds = pdsPfdAvg({ m, n, lambdaDU: 3e-7, beta: 0, proofTestIntervalHours: 8760 });
       expect(relative(pds, annexBPfdAvg(architecture, base)), architecture).toBeLessThan(1e-12);
+    }
+  });
+
+  it('the general MooN formula against the exact engine with the PDS common-cause model (lambda tau = 3.5e-3): exact below, within 2 %', () => {
+    // Both use the same C_MooN cell, so this checks the formula's independent and common-cause terms
+    // against an exact computation, not the recalled table cells (for those there is no independent
+    // check here but C_1oo2 = 1, which is how the beta factor is defined; common practice).
+    for (const [m, n] of [
+      [1, 2],
+      [2, 3],
+      [1, 3],
+      [2, 4],
+      [3, 4],
+    ]) {
+      const model = votedGroup(n, n - m + 1, { lambdaDU: 4e-7, intervalHours: 8760, missionHours: 87600 });
+      const exact = solveModel({ ...model, ccf: [{ id: 'CCF', members: model.events.map((event) => event.id), beta: 0.05, model: 'pds' }] }).pfdAvg;
+      const formula = pdsPfdAvg({ m, n, lambdaDU: 4e-7, beta: 0.05, proofTestIntervalHours: 8760 });
+      expect(exact, `${m}oo${n}`).toBeLessThan(formula);
+      expect(relative(exact, formula), `${m}oo${n}`).toBeLessThan(0.02);
     }
   });
 
