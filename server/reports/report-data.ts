@@ -1,4 +1,5 @@
 import { and, asc, desc, eq, inArray } from 'drizzle-orm';
+import { describeAnnotationTarget } from '../../shared/api/annotations.js';
 import type { ResultAnalysis } from '../../shared/api/results.js';
 import type { Sif } from '../../shared/api/sifs.js';
 import { modelFile, type ModelFile } from '../../shared/model-file.js';
@@ -38,8 +39,8 @@ export interface ReportData {
   readonly methods: readonly MethodResult[];
   /** Review rounds of the model (all revisions), oldest first, with names. */
   readonly reviewRounds: readonly { revision: number; status: string; message: string; requestedBy: string; requestedAt: Date; decidedBy: string | null; decidedAt: Date | null; decisionComment: string }[];
-  /** Review comments (annotation threads) on the model, oldest first. */
-  readonly reviewComments: readonly { revision: number; severity: string; status: string; itemId: string | null; author: string; body: string }[];
+  /** Review comments (annotation threads) on the model's items, the whole model and the result figures, oldest first. */
+  readonly reviewComments: readonly { revision: number; severity: string; status: string; itemId: string | null; pinnedTo: string; author: string; body: string }[];
   readonly analysis: ResultAnalysis;
 }
 
@@ -60,7 +61,15 @@ async function reviewsOf(db: Database, modelId: string): Promise<Pick<ReportData
       decidedAt: round.decidedAt,
       decisionComment: round.decisionComment,
     })),
-    reviewComments: comments.map((comment) => ({ revision: comment.revision, severity: comment.severity, status: comment.status, itemId: comment.itemId, author: nameOf(comment.authorId), body: comment.body })),
+    reviewComments: comments.map((comment) => ({
+      revision: comment.revision,
+      severity: comment.severity,
+      status: comment.status,
+      itemId: comment.itemId,
+      pinnedTo: describeAnnotationTarget({ kind: comment.targetKind, itemId: comment.itemId }),
+      author: nameOf(comment.authorId),
+      body: comment.body,
+    })),
   };
 }
 

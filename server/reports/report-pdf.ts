@@ -258,9 +258,9 @@ export function reportDefinition(data: ReportData, generatedAt: Date, generatedB
     { text: 'Review comments', style: 'subheading' },
     data.reviewComments.length > 0
       ? table(
-          ['Revision', 'Severity', 'Status', 'Item', 'Author', 'Comment'],
-          data.reviewComments.map((comment) => [String(comment.revision), comment.severity, comment.status, comment.itemId ?? 'whole model', comment.author, comment.body]),
-          [40, 45, 40, 60, 70, '*'],
+          ['Revision', 'Severity', 'Status', 'Pinned to', 'Author', 'Comment'],
+          data.reviewComments.map((comment) => [String(comment.revision), comment.severity, comment.status, comment.pinnedTo, comment.author, comment.body]),
+          [40, 45, 40, 85, 60, '*'],
         )
       : { text: 'No review comments on this model.', style: 'body' },
     { text: REPORT_CAUTION, style: 'caution', margin: [0, 12, 0, 0] },

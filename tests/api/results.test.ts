@@ -112,6 +112,18 @@ describe('results routes', () => {
       body: 'State the source of the valve rates.',
       authorId: world.userId.reviewer,
     });
+    await database.db.insert(annotations).values({
+      projectId: world.projectA,
+      sifId: world.sifDraft,
+      modelId: solved.modelId,
+      revision: 1,
+      targetKind: 'result',
+      itemId: 'pfd-curve',
+      severity: 'question',
+      status: 'resolved',
+      body: 'Is the proof test perfect?',
+      authorId: world.userId.reviewer,
+    });
     const reviewer = await signedInAgent(app, 'reviewer');
     const response = await reviewer.get(`${base(solved.id)}/report`).buffer(true).parse((res, callback) => {
       const chunks: Buffer[] = [];
@@ -135,7 +147,9 @@ describe('results routes', () => {
       'invented demo figure',
       `version ${SOLVER_VERSION}`,
       'does not replace competent judgement',
-      'must-fix open XV-1101A Reviewer (test) State the source of the valve rates.',
+      'must-fix open event XV-1101A Reviewer (test) State the source of the valve rates.',
+      // Comments on a result figure are listed with the others, named by the figure.
+      'question resolved result figure PFD(t) chart Reviewer (test) Is the proof test perfect?',
       'No review round of this model has been requested.',
     ]) {
       expect(text).toContain(expected);

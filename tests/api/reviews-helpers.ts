@@ -3,6 +3,7 @@ import { sql } from 'drizzle-orm';
 import nodemailer from 'nodemailer';
 import type { FaultTreeModel } from '../../shared/model-file.js';
 import { startSmtpFake, type SmtpFake } from '../../server/mail/smtp-fake.js';
+import type { AppDeps } from '../../server/app.js';
 import { createTestApp, signedInAgent } from './helpers/test-app.js';
 import { openTestDatabase, resetDatabase, type TestDatabase } from './helpers/test-database.js';
 import { seedWorld, type World } from './helpers/world.js';
@@ -31,12 +32,15 @@ export interface ReviewWorld {
   world: World;
 }
 
-/** The test database and an app whose notices go to a local SMTP fake (users' addresses: username@proofline.test). */
-export async function openReviewWorld(): Promise<Omit<ReviewWorld, 'world'>> {
+/**
+ * The test database and an app whose notices go to a local SMTP fake (users' addresses: username@proofline.test).
+ * `deps` adds to the app, e.g. a solver (given the database, since it is opened here).
+ */
+export async function openReviewWorld(deps: (database: TestDatabase) => Promise<Partial<AppDeps>> = async () => ({})): Promise<Omit<ReviewWorld, 'world'>> {
   const database = await openTestDatabase();
   const smtp = await startSmtpFake(0);
   const transport = nodemailer.createTransport({ host: '127.0.0.1', port: smtp.port, secure: false, ignoreTLS: true });
-  const app = createTestApp(database, { mail: { transport, from: 'Proofline <proofline@proofline.test>', domain: 'proofline.test' } });
+  const app = createTestApp(database, { ...(await deps(database)), mail: { transport, from: 'Proofline <proofline@proofline.test>', domain: 'proofline.test' } });
   return { database, app, smtp };
 }
 

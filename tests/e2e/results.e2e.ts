@@ -1,28 +1,16 @@
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { readFile } from 'node:fs/promises';
-import { fileURLToPath } from 'node:url';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { DEMO_MODEL, DEMO_MODEL_SIF_TAG } from '../../server/seed/demo-model.js';
 import { pdfText } from '../api/helpers/pdf-text.js';
 import { launchChromium, newSignedOutPage, screenshot, watchForPageErrors } from './browser.js';
+import { startSolverProcess } from './solver-process.js';
 
 // The seeded demo workspace (server/seed/demo-workspace.ts) with its demo model of PZT-1101
 // (server/seed/demo-model.ts): 2oo3 transmitters, a logic solver and 1oo2 valves, target SIL 2.
 const ENGINEER = { username: 'engineer', password: 'proofline-engineer' };
 const DEMO_PROJECT = 'Brackwater Point Gas Terminal: export compression';
-const ROOT = fileURLToPath(new URL('../..', import.meta.url));
-
-/** The e2e server runs without a solver (PROOFLINE_SOLVER=off); this test starts one on the same database. */
-function startSolverProcess(): ChildProcess {
-  const databaseUrl = process.env.E2E_DATABASE_URL;
-  if (!databaseUrl) throw new Error('E2E_DATABASE_URL is not set (see tests/e2e/global-setup.ts)');
-  return spawn(process.execPath, ['--import', 'tsx', 'server/solve-worker-main.ts'], {
-    cwd: ROOT,
-    env: { ...process.env, DATABASE_URL: databaseUrl },
-    stdio: ['ignore', 'inherit', 'inherit'],
-  });
-}
 
 async function json<T>(page: Page, path: string): Promise<T> {
   const response = await page.request.get(`${inject('baseUrl')}${path}`);

@@ -2,6 +2,7 @@ import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { ReceivedMail } from '../../server/mail/smtp-fake.js';
 import { launchChromium, newSignedOutPage, screenshot, watchForPageErrors } from './browser.js';
+import { startSolverProcess } from './solver-process.js';
 
 // The seeded demo workspace (server/seed/demo-workspace.ts): its engineer and reviewer in the terminal project.
 const ENGINEER = { username: 'engineer', password: 'proofline-engineer' };
@@ -169,5 +170,88 @@ describe('peer review in the browser', () => {
     await screenshot(admin.page, 'review-sent-mail');
 
     expect([...engineer.errors, ...reviewer.errors, ...admin.errors]).toEqual([]);
+  });
+
+  it('the reviewer comments on the PFD(t) chart of a solved revision; the author sees it on the results page and in the review panel, answers and resolves it', async () => {
+    const solver = startSolverProcess();
+    try {
+      const engineer = await open(ENGINEER);
+      const projects = await api<{ id: string; name: string }[]>(engineer.page, 'get', '/api/projects');
+      const project = projects.find((item) => item.name === DEMO_PROJECT)!;
+      const tag = `PSF-${Date.now() % 100_000}`;
+      const sif = await api<{ id: string }>(engineer.page, 'post', `/api/projects/${project.id}/sifs`, {
+        tag,
+        title: 'Knock-out drum high level trip',
+        hazardousEvent: 'Liquid carry-over into the compressor.',
+        demandMode: 'low',
+        target: { kind: 'sil', value: 2 },
+        demandRatePerYear: 0.1,
+        missionHours: 87_600,
+      });
+      const file = { ...MODEL, name: 'Knock-out drum D-520 high level, 1oo2' };
+      const model = await api<{ id: string; draftVersion: number }>(engineer.page, 'post', `/api/projects/${project.id}/sifs/${sif.id}/models`, { file });
+      await api(engineer.page, 'post', `/api/projects/${project.id}/models/${model.id}/revisions`, { draftVersion: model.draftVersion, reason: 'First issue' });
+      const started = await api<{ id: string }>(engineer.page, 'post', `/api/projects/${project.id}/models/${model.id}/solves`, { source: { kind: 'revision', number: 1 }, settings: { method: 'exact', timePoints: 500 } });
+      await expect.poll(async () => (await api<{ status: string }>(engineer.page, 'get', `/api/projects/${project.id}/solves/${started.id}`)).status, { timeout: 120_000 }).toBe('succeeded');
+      const resultsUrl = `${inject('baseUrl')}/projects/${project.id}/sifs/${sif.id}/models/${model.id}/results/${started.id}`;
+
+      // 1. The reviewer opens the results of revision 1 and asks a question on the PFD(t) chart.
+      const reviewer = await open(REVIEWER);
+      await reviewer.page.goto(resultsUrl);
+      const reviewerPin = reviewer.page.locator('[data-figure-pin="pfd-curve"]');
+      await expect.poll(() => reviewerPin.innerText()).toContain('0');
+      await reviewerPin.click();
+      const reviewerThreads = reviewer.page.locator('[data-figure-threads="pfd-curve"]');
+      const form = reviewerThreads.getByRole('form', { name: 'New comment on PFD(t) chart' });
+      await form.getByLabel('Severity').selectOption('question');
+      await form.getByLabel('Comment').fill('Is the proof test taken as perfect (full coverage)?');
+      await form.getByRole('button', { name: 'Add comment' }).click();
+      await reviewerThreads.locator('[data-figure-thread][data-status="open"]').waitFor();
+      await expect.poll(() => reviewerPin.getAttribute('data-severity')).toBe('question');
+      expect((await reviewerPin.locator('.count').innerText()).trim()).toBe('1');
+      await screenshot(reviewer.page, 'review-figure-comment');
+
+      // 2. The engineer, the model's author, sees the marker on the same figure, reads and answers the question.
+      await engineer.page.goto(resultsUrl);
+      const engineerPin = engineer.page.locator('[data-figure-pin="pfd-curve"]');
+      await expect.poll(() => engineerPin.getAttribute('data-severity')).toBe('question');
+      expect(await engineer.page.locator('[data-figure-comments-note]').innerText()).toContain('1 review comment on the figures, 1 open');
+      await engineerPin.click();
+      const thread = engineer.page.locator('[data-figure-threads="pfd-curve"] [data-figure-thread]');
+      expect(await thread.locator('.body').innerText()).toContain('Is the proof test taken as perfect (full coverage)?');
+      await thread.getByLabel('Reply').fill('Yes: coverage 100 %, stated in the assumptions.');
+      await thread.getByRole('button', { name: 'Reply' }).click();
+      await expect.poll(() => thread.locator('.reply').allInnerTexts()).toEqual([expect.stringContaining('Yes: coverage 100 %, stated in the assumptions.')]);
+      await thread.getByRole('button', { name: 'Resolve' }).click();
+      await expect.poll(() => thread.getAttribute('data-status')).toBe('resolved');
+      await expect.poll(() => engineerPin.getAttribute('data-severity')).toBe('resolved');
+
+      // 3. The review panel beside the canvas lists it by its figure and leads back to it.
+      await engineer.page.goto(`${inject('baseUrl')}/projects/${project.id}/sifs/${sif.id}/models/${model.id}`);
+      await engineer.page.getByRole('button', { name: /^Review/ }).click();
+      const listed = engineer.page.locator('[data-annotation="pfd-curve"]');
+      expect(await listed.locator('.thread-head').innerText()).toContain('result figure PFD(t) chart');
+      await listed.locator('.thread-head').click();
+      await listed.locator('[data-results-link]').click();
+      await engineer.page.waitForURL(/\/results\/[0-9a-f-]+\?figure=pfd-curve$/);
+      await engineer.page.locator('[data-figure-threads="pfd-curve"] [data-figure-thread][data-status="resolved"]').waitFor();
+
+      // 4. The comment reached the author by mail, and the answer reached the reviewer.
+      const domain = inject('mailDomain');
+      const received = async () => {
+        const reply = await fetch(inject('mailInboxUrl'));
+        return ((await reply.json()) as ReceivedMail[]).filter((mail) => mail.subject.includes(file.name));
+      };
+      await expect.poll(async () => (await received()).length).toBe(2);
+      const mails = await received();
+      const comment = mails.find((mail) => mail.subject.includes(`commented on ${file.name} revision 1`));
+      expect(comment?.to).toEqual([`engineer@${domain}`]);
+      expect(comment?.raw).toContain('question on result figure PFD(t) chart');
+      expect(mails.find((mail) => mail.subject.includes(`replied to your annotation on ${file.name}`))?.to).toEqual([`reviewer@${domain}`]);
+
+      expect([...engineer.errors, ...reviewer.errors]).toEqual([]);
+    } finally {
+      solver.kill('SIGTERM');
+    }
   });
 });

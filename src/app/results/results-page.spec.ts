@@ -1,5 +1,5 @@
 import { HttpTestingController } from '@angular/common/http/testing';
-import { NO_ERRORS_SCHEMA } from '@angular/core';
+import { NO_ERRORS_SCHEMA, signal } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
@@ -13,9 +13,12 @@ import type { FaultTreeModel, MarkovModel, ModelFile } from '../../../shared/mod
 import { silReached } from '../../../shared/sil.js';
 import { architecturalConstraints, silClaim, spuriousTripRate } from '../../../solver/analysis/index.js';
 import { solveModel } from '../../../solver/index.js';
+import { annotation } from '../../../shared/api/annotations.js';
+import { SessionStore } from '../auth/session-store';
 import { CanvasFocus } from '../canvas/canvas-focus';
 import { appTestProviders, settle } from '../testing/app-test-providers';
 import { OWNER_ID, PROJECT_ID } from '../testing/fixtures';
+import { FigureComments } from './figure-comments';
 import { ResultsPage } from './results-page';
 
 const SIF_ID = '3c2b1a0f-9e8d-4c7b-8a69-5f4e3d2c1b0a';
@@ -110,22 +113,31 @@ function build(file: ModelFile) {
 describe('ResultsPage', { timeout: 30_000 }, () => {
   let http: HttpTestingController;
 
-  async function open(file: ModelFile) {
+  /** Opens the page of a draft solve, or of a solve of an issued revision (then `whenIssued` answers the review requests). */
+  async function open(file: ModelFile, issued?: { revision: number; query?: string; whenIssued: () => void }) {
     TestBed.configureTestingModule({
-      providers: appTestProviders([{ path: 'projects/:projectId/sifs/:sifId/models/:modelId/results/:solveId', component: ResultsPage }]),
+      providers: [
+        ...appTestProviders([{ path: 'projects/:projectId/sifs/:sifId/models/:modelId/results/:solveId', component: ResultsPage }]),
+        { provide: SessionStore, useValue: { user: signal({ id: OWNER_ID }) } },
+      ],
     });
     // jsdom draws no canvas: the charts are left out here (their options are checked in chart-options.spec.ts).
-    TestBed.overrideComponent(ResultsPage, { set: { imports: [RouterLink, MatButton, MatIcon, MatProgressBar], schemas: [NO_ERRORS_SCHEMA] } });
+    TestBed.overrideComponent(ResultsPage, { set: { imports: [RouterLink, MatButton, MatIcon, MatProgressBar, FigureComments], schemas: [NO_ERRORS_SCHEMA] } });
     http = TestBed.inject(HttpTestingController);
     const data = fixtures(file);
+    const record = issued ? { ...data.record, revisionNumber: issued.revision, draftVersion: null } : data.record;
     const harness = await RouterTestingHarness.create();
-    const navigation = harness.navigateByUrl(`/projects/${PROJECT_ID}/sifs/${SIF_ID}/models/${MODEL_ID}/results/${SOLVE_ID}`);
+    const navigation = harness.navigateByUrl(`/projects/${PROJECT_ID}/sifs/${SIF_ID}/models/${MODEL_ID}/results/${SOLVE_ID}${issued?.query ?? ''}`);
     await settle(harness.fixture);
-    http.expectOne(`/api/projects/${PROJECT_ID}/solves/${SOLVE_ID}`).flush(data.record);
+    http.expectOne(`/api/projects/${PROJECT_ID}/solves/${SOLVE_ID}`).flush(record);
     await settle(harness.fixture);
     http.expectOne(`/api/projects/${PROJECT_ID}/solves/${SOLVE_ID}/analysis`).flush(data.analysis);
     await navigation;
     await settle(harness.fixture);
+    if (issued) {
+      issued.whenIssued();
+      await settle(harness.fixture);
+    }
     return { element: harness.routeNativeElement as HTMLElement, ...data };
   }
 
@@ -169,6 +181,51 @@ describe('ResultsPage', { timeout: 30_000 }, () => {
     expect(focus.highlighted()).toEqual(['VALVES']);
     element.querySelector<HTMLElement>('[data-cut-sets] tbody tr:nth-child(3)')?.click();
     expect(focus.highlighted().length).toBe(2);
+  });
+
+  it('a solve of an issued revision carries a comment marker on every figure, counts them in the header and unfolds the one asked for', async () => {
+    const onCutSets = annotation.parse({
+      id: '6f5e4d3c-2b1a-4f0e-9d8c-8c7b6a5f4e3d',
+      projectId: PROJECT_ID,
+      sifId: SIF_ID,
+      modelId: MODEL_ID,
+      revision: 1,
+      target: { kind: 'result', itemId: 'cut-sets' },
+      severity: 'must-fix',
+      status: 'open',
+      body: 'Rank the CCF cut set first.',
+      authorId: '7a6f5e4d-3c2b-4a1f-8e9d-9d8c7b6a5f4e',
+      authorDisplayName: 'Rhea Reviewer',
+      createdAt: '2026-01-06T09:00:00.000Z',
+      resolvedById: null,
+      resolvedAt: null,
+      outdated: true,
+      outdatedBecause: 'the figure changed since revision 1: cut sets changed',
+      solveId: null,
+      replies: [],
+    });
+    const { element } = await open(model(2e-6), {
+      revision: 2,
+      query: '?figure=cut-sets',
+      whenIssued: () => {
+        http.expectOne(`/api/projects/${PROJECT_ID}/members`).flush([{ userId: OWNER_ID, username: 'mira.okafor', displayName: 'Mira Okafor', role: 'engineer' }]);
+        http.expectOne((request) => request.url === `/api/projects/${PROJECT_ID}/models/${MODEL_ID}/annotations` && request.params.get('revision') === '2').flush({ revision: 2, annotations: [onCutSets] });
+      },
+    });
+    const markers = [...element.querySelectorAll<HTMLElement>('[data-figure-pin]')].map((pin) => `${pin.dataset['figurePin']} ${pin.querySelector('.count')?.textContent}`);
+    expect(markers).toEqual(['verdict 0', 'pfd-curve 0', 'weakest-link 0', 'spurious-trips 0', 'cut-sets 1', 'importance 0', 'constraints 0', 'sensitivity 0']);
+    // Each marker sits in its figure's card, under the figure's heading.
+    expect(element.querySelector('[data-figure-pin="cut-sets"]')?.closest('section')?.querySelector('h2')?.textContent).toBe('Minimal cut sets');
+    expect(element.querySelector('[data-figure-comments-note]')?.textContent).toContain('1 review comment on the figures, 1 open');
+    const unfolded = element.querySelector('[data-figure-threads="cut-sets"]');
+    expect(unfolded?.querySelector('[data-outdated-because]')?.textContent).toBe('the figure changed since revision 1: cut sets changed');
+    expect(unfolded?.querySelector('form')?.getAttribute('aria-label')).toBe('New comment on Minimal cut sets');
+  });
+
+  it('a draft solve has no figure markers and says comments are kept with issued revisions', async () => {
+    const { element } = await open(model(2e-6));
+    expect(element.querySelector('[data-figure-pin]')).toBeNull();
+    expect(element.querySelector('[data-figure-comments-note]')?.textContent).toContain('kept with issued revisions');
   });
 
   it('a state model: says why it has no architectural constraints and offers the sensitivity and uncertainty', async () => {

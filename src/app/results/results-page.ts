@@ -10,11 +10,14 @@ import { BarChart, LineChart } from 'echarts/charts';
 import { DataZoomComponent, GridComponent, MarkAreaComponent, MarkLineComponent, TooltipComponent } from 'echarts/components';
 import { CanvasRenderer } from 'echarts/renderers';
 import { NgxEchartsDirective, provideEchartsCore } from 'ngx-echarts';
+import { isResultFigure } from '../../../shared/api/annotations.js';
 import { RESULT_TABLES, type ResultAnalysis, type ResultTable } from '../../../shared/api/results.js';
 import type { Solve } from '../../../shared/api/solves.js';
 import type { SolveResult } from '../../../shared/solve-result.js';
 import { CanvasFocus } from '../canvas/canvas-focus';
 import { barChartOptions } from './chart-options';
+import { FigureComments } from './figure-comments';
+import { FigureThreads } from './figure-threads';
 import { MonteCarloCheck } from './monte-carlo-check';
 import { PfdChart } from './pfd-chart';
 import { ResultRecords } from './result-records';
@@ -42,11 +45,13 @@ interface Loaded {
  * The results workspace of one solve: the verdict with the methods side by side, the PFD(t) chart, the
  * weakest link, the architectural constraints and the SIL claim, spurious trips, sensitivity and
  * uncertainty, and the report downloads. Clicking an item shows it on the model canvas (CanvasFocus).
+ * Each figure carries its review comments (FigureComments) when the solve is of an issued revision;
+ * ?figure=<id> unfolds that figure's comments on arrival.
  */
 @Component({
   selector: 'pl-results-page',
-  imports: [RouterLink, MatButton, MatIcon, MatProgressBar, NgxEchartsDirective, PfdChart, SensitivityPanel, MonteCarloCheck],
-  providers: [provideEchartsCore({ echarts })],
+  imports: [RouterLink, MatButton, MatIcon, MatProgressBar, NgxEchartsDirective, PfdChart, SensitivityPanel, MonteCarloCheck, FigureComments],
+  providers: [provideEchartsCore({ echarts }), FigureThreads],
   templateUrl: './results-page.html',
   styleUrl: './results-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -58,11 +63,14 @@ export class ResultsPage {
   private readonly router = inject(Router);
   private readonly title = inject(Title);
   private readonly errorHandler = inject(ErrorHandler);
+  protected readonly figureThreads = inject(FigureThreads);
 
   readonly projectId = input.required<string>();
   readonly sifId = input.required<string>();
   readonly modelId = input.required<string>();
   readonly solveId = input.required<string>();
+  /** A result figure whose review comments to unfold (from the review panel's link). */
+  readonly figure = input<string | undefined>(undefined);
 
   protected readonly loaded = signal<Loaded | null>(null);
   protected readonly problem = signal<string | null>(null);
@@ -159,6 +167,9 @@ export class ResultsPage {
       const analysis = await this.records.analysis(projectId, solveId);
       this.loaded.set({ solve, result: solve.result, analysis });
       this.title.setTitle(`Results ${analysis.sif.tag} · Proofline`);
+      const figure = this.figure() ?? null;
+      if (isResultFigure(figure)) this.figureThreads.open(figure);
+      await this.figureThreads.load(projectId, solve.modelId, solve.revisionNumber, solve.id);
     } catch (error) {
       this.problem.set('The results could not be loaded.');
       this.errorHandler.handleError(error);

@@ -5,6 +5,7 @@ import { auditList, noticeSettings, sentMailList } from '../../../shared/api/aud
 import { memberList } from '../../../shared/api/projects.js';
 import { modelRevisionDetail, modelRevisionList } from '../../../shared/api/models.js';
 import { reviewRound, reviewRoundList, revisionDiff } from '../../../shared/api/reviews.js';
+import { solveList } from '../../../shared/api/solves.js';
 import { parsed } from '../http/parse-response';
 
 /** The review API: rounds, annotation threads, revision diffs, the audit trail and mail notices. */
@@ -48,15 +49,26 @@ export class ReviewDesk {
     return parsed('the revision diff', this.http.get(`/api/projects/${projectId}/models/${modelId}/diff`, { params: { from, to } }), revisionDiff);
   }
 
-  annotations(projectId: string, modelId: string, filter: { status?: AnnotationStatus; severity?: AnnotationSeverity }): Promise<AnnotationList> {
+  /** The threads as they stand on a revision (default: the latest issued one), filtered. */
+  annotations(projectId: string, modelId: string, filter: { revision?: number; status?: AnnotationStatus; severity?: AnnotationSeverity }): Promise<AnnotationList> {
     const params: Record<string, string> = {};
+    if (filter.revision !== undefined) params['revision'] = String(filter.revision);
     if (filter.status) params['status'] = filter.status;
     if (filter.severity) params['severity'] = filter.severity;
     return parsed('the annotations', this.http.get(`/api/projects/${projectId}/models/${modelId}/annotations`, { params }), annotationList);
   }
 
-  annotate(projectId: string, modelId: string, revision: number, target: AnnotationTarget, severity: AnnotationSeverity, body: string) {
-    return parsed('the new annotation', this.http.post(`/api/projects/${projectId}/models/${modelId}/annotations`, { revision, target, severity, body }), annotation);
+  /** A new thread; on a result figure, solveId names the solve whose figure the annotator looked at. */
+  annotate(projectId: string, modelId: string, revision: number, target: AnnotationTarget, severity: AnnotationSeverity, body: string, solveId?: string) {
+    const request = solveId === undefined ? { revision, target, severity, body } : { revision, target, severity, body, solveId };
+    return parsed('the new annotation', this.http.post(`/api/projects/${projectId}/models/${modelId}/annotations`, request), annotation);
+  }
+
+  /** The latest succeeded solve of an issued revision, to open its results page; null when there is none. */
+  async latestSolveOf(projectId: string, modelId: string, revision: number): Promise<string | null> {
+    const list = await parsed('the solves', this.http.get(`/api/projects/${projectId}/models/${modelId}/solves`, { params: { revision, status: 'succeeded' } }), solveList);
+    // The list holds every solve of the revision's content, drafts of the same content too: figure threads live on revisions.
+    return list.find((entry) => entry.revisionNumber === revision)?.id ?? null;
   }
 
   reply(projectId: string, annotationId: string, body: string) {

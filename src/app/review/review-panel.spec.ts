@@ -45,8 +45,35 @@ function thread(overrides: Partial<Annotation>): Annotation {
     resolvedById: null,
     resolvedAt: null,
     outdated: false,
+    outdatedBecause: null,
+    solveId: null,
     replies: [],
     ...overrides,
+  };
+}
+
+/** A succeeded solve's summary, of a revision or (null) of a draft. */
+function solveSummary(id: string, revisionNumber: number | null) {
+  return {
+    id,
+    projectId: PROJECT,
+    modelId: MODEL,
+    revisionNumber,
+    draftVersion: revisionNumber === null ? 4 : null,
+    contentHash: 'h',
+    solverVersion: '1',
+    settings: { method: 'exact', timePoints: 200 },
+    status: 'succeeded',
+    progress: 1,
+    stage: null,
+    error: null,
+    cached: false,
+    cancelRequested: false,
+    requestedById: ENGINEER,
+    requestedByDisplayName: 'Ezra',
+    createdAt: AT,
+    startedAt: AT,
+    finishedAt: AT,
   };
 }
 
@@ -73,7 +100,7 @@ const ROUND: ReviewRound = {
 describe('ReviewPanel', () => {
   let http: HttpTestingController;
 
-  async function render(me: string, annotations: Annotation[]) {
+  async function render(me: string, annotations: Annotation[], solves?: (revision: number) => void) {
     TestBed.configureTestingModule({
       providers: [...appTestProviders(), { provide: SessionStore, useValue: { user: signal({ id: me }) } }],
     });
@@ -95,6 +122,10 @@ describe('ReviewPanel', () => {
       id: '00000000-0000-4000-8000-0000000000c1', modelId: MODEL, number: 2, contentHash: 'h', reason: 'r', issuedAt: AT, issuedById: ENGINEER, issuedByDisplayName: 'Ezra', content: FILE,
     });
     await settle(fixture);
+    if (solves) {
+      solves(2);
+      await settle(fixture);
+    }
     (fixture.nativeElement as HTMLElement).querySelector<HTMLButtonElement>('.review-toggle')!.click();
     await settle(fixture);
     return { fixture, element: fixture.nativeElement as HTMLElement };
@@ -111,7 +142,49 @@ describe('ReviewPanel', () => {
     await settle(fixture);
     expect(TestBed.inject(CanvasFocus).highlighted()).toEqual(['TOP']);
     const pins = [...element.querySelectorAll('select[name="pin"] option')].map((option) => option.textContent);
-    expect(pins).toEqual(['The whole model', 'event LS-A', 'event LS-B', 'gate TOP', 'result PFDavg', 'result PFD(t) chart']);
+    expect(pins).toEqual([
+      'The whole model',
+      'event LS-A',
+      'event LS-B',
+      'gate TOP',
+      // Every figure of the results page (shared/api/annotations.ts RESULT_FIGURES).
+      'result figure Verdict',
+      'result figure PFD(t) chart',
+      'result figure Weakest link',
+      'result figure Spurious trips',
+      'result figure Minimal cut sets',
+      'result figure Importance measures',
+      'result figure Architectural constraints and the SIL claim',
+      'result figure Sensitivity and uncertainty',
+    ]);
+  });
+
+  it('lists result-figure threads by their figure, says why one is outdated, and links to the figure on the latest results of the revision', async () => {
+    const figure = thread({
+      id: '00000000-0000-4000-8000-0000000000a2',
+      target: { kind: 'result', itemId: 'cut-sets' },
+      severity: 'question',
+      outdated: true,
+      outdatedBecause: 'the figure changed since revision 1: cut sets changed',
+    });
+    const { fixture, element } = await render(ENGINEER, [figure], (revision) => {
+      // A draft solve of the same content comes first in the list; the link goes to the revision's own solve.
+      http.expectOne((request) => request.url === `/api/projects/${PROJECT}/models/${MODEL}/solves` && request.params.get('revision') === String(revision)).flush([
+        solveSummary('00000000-0000-4000-8000-0000000000d2', null),
+        solveSummary('00000000-0000-4000-8000-0000000000d1', revision),
+      ]);
+    });
+    const item = element.querySelector('[data-annotation="cut-sets"]')!;
+    expect(item.querySelector('.thread-head')?.textContent).toContain('result figure Minimal cut sets');
+    expect(item.querySelector('.outdated')?.getAttribute('title')).toBe('the figure changed since revision 1: cut sets changed');
+    (item.querySelector('.thread-head') as HTMLButtonElement).click();
+    await settle(fixture);
+    expect(item.querySelector('[data-outdated-because]')?.textContent).toBe('Outdated: the figure changed since revision 1: cut sets changed.');
+    const link = item.querySelector<HTMLAnchorElement>('[data-results-link]')!;
+    expect(link.getAttribute('href')).toBe(`/projects/${PROJECT}/sifs/${SIF}/models/${MODEL}/results/00000000-0000-4000-8000-0000000000d1?figure=cut-sets`);
+    // A figure thread pins nothing on the canvas.
+    expect(TestBed.inject(ReviewPins).pins().size).toBe(0);
+    expect(TestBed.inject(CanvasFocus).highlighted()).toEqual([]);
   });
 
   it('publishes its threads as canvas pins, opens the thread of a clicked pin, and takes the pins away when closed', async () => {

@@ -1,7 +1,16 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, ErrorHandler, Injector, afterNextRender, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { RouterLink } from '@angular/router';
-import { ANNOTATION_SEVERITIES, type Annotation, type AnnotationSeverity, type AnnotationStatus, type AnnotationTargetKind } from '../../../shared/api/annotations.js';
+import {
+  ANNOTATION_SEVERITIES,
+  RESULT_FIGURES,
+  RESULT_FIGURE_LABELS,
+  describeAnnotationTarget,
+  type Annotation,
+  type AnnotationSeverity,
+  type AnnotationStatus,
+  type AnnotationTargetKind,
+} from '../../../shared/api/annotations.js';
 import type { Member } from '../../../shared/api/projects.js';
 import { REVIEWER_ROLES, type ReviewRound, type RevisionDiff } from '../../../shared/api/reviews.js';
 import { modelItems } from '../../../shared/model-diff.js';
@@ -56,6 +65,7 @@ export class ReviewPanel {
   readonly changed = output<void>();
 
   protected readonly show = show;
+  protected readonly describe = describeAnnotationTarget;
   protected readonly severities = ANNOTATION_SEVERITIES;
   protected readonly members = signal<readonly Member[]>([]);
   protected readonly rounds = signal<readonly ReviewRound[]>([]);
@@ -71,6 +81,8 @@ export class ReviewPanel {
   protected readonly expanded = signal(false);
   protected readonly openThreads = computed(() => this.threads().filter((thread) => thread.status === 'open').length);
   protected readonly message = signal<string | null>(null);
+  /** The latest succeeded solve of the shown revision, whose results page shows the result-figure threads. */
+  protected readonly resultsSolveId = signal<string | null>(null);
 
   private readonly me = computed(() => this.session.user()?.id ?? null);
   protected readonly myRole = computed(() => this.members().find((member) => member.userId === this.me())?.role ?? null);
@@ -128,8 +140,10 @@ export class ReviewPanel {
             if (item.kind !== 'model') options.push({ key: `${item.kind}:${item.id}`, kind: item.kind, itemId: item.id, label: `${item.kind} ${item.id}` });
           }
         }
-        options.push({ key: 'result:pfdAvg', kind: 'result', itemId: 'pfdAvg', label: 'result PFDavg' }, { key: 'result:pfd-curve', kind: 'result', itemId: 'pfd-curve', label: 'result PFD(t) chart' });
+        for (const figure of RESULT_FIGURES) options.push({ key: `result:${figure}`, kind: 'result', itemId: figure, label: `result figure ${RESULT_FIGURE_LABELS[figure]}` });
         this.pinOptions.set(options);
+        const onFigures = list.annotations.some((thread) => thread.target.kind === 'result');
+        this.resultsSolveId.set(onFigures ? await this.desk.latestSolveOf(projectId, modelId, list.revision) : null);
       }
     } catch (error) {
       this.errorHandler.handleError(error);
@@ -213,6 +227,13 @@ export class ReviewPanel {
     } catch (error) {
       this.errorHandler.handleError(error);
     }
+  }
+
+  /** The results page that shows a result-figure thread, unfolded at its figure; null without a solve of the revision. */
+  protected resultsLink(thread: Annotation): { path: string[]; figure: string } | null {
+    const solveId = this.resultsSolveId();
+    if (thread.target.kind !== 'result' || thread.target.itemId === null || solveId === null) return null;
+    return { path: ['/projects', this.projectId(), 'sifs', this.sifId(), 'models', this.modelId(), 'results', solveId], figure: thread.target.itemId };
   }
 
   protected highlightItem(kind: string, id: string): void {

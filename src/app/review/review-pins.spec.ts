@@ -26,6 +26,8 @@ function thread(overrides: Partial<Annotation>): Annotation {
     resolvedById: null,
     resolvedAt: null,
     outdated: false,
+    outdatedBecause: null,
+    solveId: null,
     replies: [],
     ...overrides,
   };

@@ -44,11 +44,11 @@ export function pinsOf(threads: readonly Annotation[], kinds: ReadonlySet<string
   return pins;
 }
 
-/** The words a marker says to a screen reader and in its tooltip. */
-export function pinLabel(pin: Pin, action = 'open in the review panel'): string {
+/** The words a marker says to a screen reader and in its tooltip; `pinned` is what the threads are on ("item", "figure"). */
+export function pinLabel(pin: Pin, action = 'open in the review panel', pinned = 'item'): string {
   const threads = `${pin.count} annotation${pin.count === 1 ? '' : 's'}`;
   const state = pin.openCount === 0 ? 'all resolved' : `${pin.openCount} open, highest ${pin.severity}`;
-  return `${threads} (${state}${pin.outdated ? ', outdated: the item changed since' : ''}); ${action}`;
+  return `${threads} (${state}${pin.outdated ? `, outdated: the ${pinned} changed since` : ''}); ${action}`;
 }
 
 /**
