@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, ErrorHandler, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, ChangeDetectorRef, Component, ErrorHandler, effect, inject, input, signal, untracked } from '@angular/core';
 import { ReactiveFormsModule } from '@angular/forms';
 import { MatButton, MatIconButton } from '@angular/material/button';
 import { MatCheckbox } from '@angular/material/checkbox';
@@ -13,17 +13,34 @@ import { formatPath } from '../../../shared/model-file.js';
 import type { DeviceSummary } from '../../../shared/api/devices.js';
 import type { Sif } from '../../../shared/api/sifs.js';
 import { generateModels } from '../../../solver/generator/index.js';
-import { numberMessage, readControl } from '../canvas/properties/typed-number';
+import { numberMessage } from '../canvas/properties/typed-number';
 import { DevicePickerDialog, type DevicePickerDialogData } from '../devices/device-picker-dialog';
 import { ModelRecords } from '../models/model-records';
 import { SifRecords } from '../register/sif-records';
 import { INTERVAL_UNITS, INTERVAL_UNIT_LABELS, RATE_UNITS, RATE_UNIT_LABELS } from '../units/units';
-import { SUBSYSTEM_ROLE_LABELS, applyDevice, architectureFromForm, buildSubsystemForm, buildWizardForm, type SubsystemForm, type SubsystemRole, type WizardForm } from './wizard-form';
+import {
+  SUBSYSTEM_ROLE_LABELS,
+  architectureFromForm,
+  buildSubsystemForm,
+  buildWizardForm,
+  linkDevice,
+  linkedDifferences,
+  restoreLibraryValues,
+  subsystemLinks,
+  unlinkDevice,
+  type LinkedDifference,
+  type SubsystemForm,
+  type SubsystemRole,
+  type WizardForm,
+} from './wizard-form';
+import { linkGeneratedEvents } from './wizard-links';
 
 /**
  * The architecture wizard: subsystems (sensors, logic, final elements) in series, each with its voting,
  * devices, test plan and common cause. The solver's generator writes the fault tree (and, on request,
- * the equivalent state model) from it; the user then goes on editing the fault tree on the canvas.
+ * the equivalent state model) from it; the user then goes on editing the fault tree on the canvas. A
+ * device picked from the library stays linked: every channel event of its subsystem links to the version
+ * picked, as a pick on the canvas does (the state model has no events, so it carries the figures only).
  */
 @Component({
   selector: 'pl-architecture-wizard',
@@ -53,6 +70,7 @@ export class ArchitectureWizard {
   private readonly router = inject(Router);
   private readonly errorHandler = inject(ErrorHandler);
   private readonly dialog = inject(MatDialog);
+  private readonly changeDetector = inject(ChangeDetectorRef);
 
   readonly projectId = input.required<string>();
   readonly sifId = input.required<string>();
@@ -96,16 +114,29 @@ export class ArchitectureWizard {
     subsystems.push(buildSubsystemForm(role, `${prefix}${number}`));
   }
 
-  /** Fills the subsystem's device from a library record (figures copied; the repair time stays as typed). */
+  /** Links the subsystem's device to a library record's current version; its figures fill in (the repair time stays as typed). */
   protected pickDevice(subsystem: SubsystemForm): void {
+    const data: DevicePickerDialogData = { linkedId: subsystem.controls.device.value?.deviceId ?? null };
     this.dialog
-      .open<DevicePickerDialog, DevicePickerDialogData, DeviceSummary>(DevicePickerDialog, { data: { linkedId: null }, width: '720px', maxWidth: '95vw' })
+      .open<DevicePickerDialog, DevicePickerDialogData, DeviceSummary>(DevicePickerDialog, { data, width: '720px', maxWidth: '95vw' })
       .afterClosed()
       .subscribe((device) => {
         if (!device) return;
-        const label = `${device.maker} ${device.model} (library v${device.version})`.slice(0, 200);
-        applyDevice(subsystem, { label, lambdaDU: device.lambdaDU, lambdaDD: device.lambdaDD, mttrHours: readControl(subsystem.controls.mttrHours) ?? 8 });
+        linkDevice(subsystem, device);
+        this.changeDetector.markForCheck();
       });
+  }
+
+  protected unlinkDevice(subsystem: SubsystemForm): void {
+    unlinkDevice(subsystem);
+  }
+
+  protected restoreLibraryValues(subsystem: SubsystemForm): void {
+    restoreLibraryValues(subsystem);
+  }
+
+  protected differences(subsystem: SubsystemForm): LinkedDifference[] {
+    return linkedDifferences(subsystem);
   }
 
   protected removeSubsystem(index: number): void {
@@ -126,9 +157,16 @@ export class ArchitectureWizard {
       this.problems.set(checked.error.issues.map((issue) => `${describeArchitecturePath(issue.path)}: ${issue.message}`));
       return;
     }
+    const { links, problems } = subsystemLinks(form);
+    if (problems.length > 0) {
+      this.problems.set(problems);
+      return;
+    }
     let generated: ReturnType<typeof generateModels>;
+    let faultTree: ReturnType<typeof generateModels>['faultTree'];
     try {
       generated = generateModels(checked.data);
+      faultTree = linkGeneratedEvents(generated.faultTree, links);
     } catch (error) {
       this.problems.set([error instanceof Error ? error.message : String(error)]);
       return;
@@ -136,7 +174,7 @@ export class ArchitectureWizard {
     this.warnings.set(generated.warnings);
     this.busy.set(true);
     try {
-      const tree = await this.records.create(this.projectId(), this.sifId(), generated.faultTree);
+      const tree = await this.records.create(this.projectId(), this.sifId(), faultTree);
       if (form.controls.writeStateModel.value) await this.records.create(this.projectId(), this.sifId(), { ...generated.markov, name: `${generated.markov.name} (state model)` });
       await this.router.navigate(['/projects', this.projectId(), 'sifs', this.sifId(), 'models', tree.id]);
     } catch (error) {

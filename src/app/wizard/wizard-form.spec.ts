@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { architecture } from '../../../shared/architecture.js';
 import { generateModels } from '../../../solver/generator/index.js';
-import { applyDevice, architectureFromForm, buildWizardForm } from './wizard-form';
+import { deviceVersionFixture } from '../devices/device-fixtures';
+import { architectureFromForm, buildWizardForm, linkDevice, linkedDifferences, subsystemLinks, unlinkDevice } from './wizard-form';
 
 describe('the architecture wizard form', () => {
   function filledForm() {
@@ -43,11 +44,44 @@ describe('the architecture wizard form', () => {
     expect(faultTree.ccf?.map((group) => group.beta)).toEqual([0.05, 0.1]);
   });
 
-  it('fills the device fields from device data in the chosen unit', () => {
+  it('fills the linked fields from a library version in the chosen unit and uses its exact figures', () => {
+    const form = filledForm();
+    const valves = form.controls.subsystems.at(2);
+    // 1.23456789e-7 /h is shown to six digits as 0.00108148 per year (8760 h a year, common practice).
+    const version = deviceVersionFixture({ lambdaDU: 1.23456789e-7, lambdaDD: 0, proofTestCoverage: 0.75 });
+    valves.patchValue({ rateUnit: 'perYear', mttrHours: '24' });
+    linkDevice(valves, version);
+    expect(valves.getRawValue()).toMatchObject({ deviceLabel: 'Quillfen Instruments (fictional) QP-400 pressure transmitter', lambdaDU: '0.00108148', lambdaDD: '0', proofCoverage: '75', mttrHours: '24' });
+    expect(linkedDifferences(valves)).toEqual([]);
+    const channel = (architectureFromForm(form).groups[2].channels as { identical: { lambdaDU: number; proofTest?: { coverage?: number } } }).identical;
+    // The figure the field shows is rounded; the channel gets the library's own value.
+    expect(channel.lambdaDU).toBe(1.23456789e-7);
+    expect(channel.proofTest?.coverage).toBe(0.75);
+    expect(subsystemLinks(form)).toEqual({ links: new Map([['XV', { version, overrides: [] }]]), problems: [] });
+  });
+
+  it('needs a reason for a linked figure typed differently, then keeps it as an override', () => {
     const form = filledForm();
     const sensors = form.controls.subsystems.at(0);
-    applyDevice(sensors, { label: 'Pressure transmitter PX-9 (invented)', lambdaDU: 4e-7, lambdaDD: 1.6e-6, mttrHours: 24 });
-    expect(sensors.getRawValue()).toMatchObject({ deviceLabel: 'Pressure transmitter PX-9 (invented)', lambdaDU: '400', lambdaDD: '1600', mttrHours: '24' });
+    linkDevice(sensors, deviceVersionFixture());
+    sensors.patchValue({ lambdaDD: '', proofCoverage: '80' });
+    expect(linkedDifferences(sensors).map((difference) => [difference.field, difference.libraryText])).toEqual([
+      ['lambdaDD', '360 FIT'],
+      ['proofTest.coverage', '90 %'],
+    ]);
+    expect(subsystemLinks(form).problems).toEqual([
+      'Subsystem 1: λDD (library 360 FIT), Proof-test coverage (library 90 %) differ from Quillfen Instruments (fictional) QP-400 pressure transmitter version 1; give the reason for the override or restore the library values.',
+    ]);
+    sensors.patchValue({ overrideReason: '  Partial stroke only (invented)  ' });
+    const { links, problems } = subsystemLinks(form);
+    expect(problems).toEqual([]);
+    expect(links.get('PT')?.overrides).toEqual([
+      { field: 'lambdaDD', reason: 'Partial stroke only (invented)' },
+      { field: 'proofTest.coverage', reason: 'Partial stroke only (invented)' },
+    ]);
+    unlinkDevice(sensors);
+    expect(subsystemLinks(form).links.size).toBe(0);
+    expect(sensors.controls.proofCoverage.value).toBe('80');
   });
 
   it('is refused by the architecture schema when N does not match the voting', () => {
