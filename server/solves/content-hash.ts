@@ -1,21 +1,9 @@
 import { createHash } from 'node:crypto';
 import type { ModelFile } from '../../shared/model-file.js';
 import type { SolveSettings } from '../../shared/api/solves.js';
+import { canonicalJson } from '../../shared/canonical-json.js';
 
-/**
- * JSON with object keys sorted at every level, so that two documents that differ only in key order hash
- * alike (PostgreSQL jsonb does not keep key order, and editors write keys in any order).
- */
-export function canonicalJson(value: unknown): string {
-  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
-  if (value !== null && typeof value === 'object') {
-    const entries = Object.entries(value as Record<string, unknown>)
-      .filter(([, item]) => item !== undefined)
-      .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
-    return `{${entries.map(([key, item]) => `${JSON.stringify(key)}:${canonicalJson(item)}`).join(',')}}`;
-  }
-  return JSON.stringify(value);
-}
+export { canonicalJson };
 
 function sha256(text: string): string {
   return createHash('sha256').update(text).digest('hex');

@@ -15,7 +15,7 @@ import { isApiError } from '../errors/api-error';
 import { ProjectCatalog } from '../projects/project-catalog';
 import { SifRecords } from '../register/sif-records';
 import { DraftConflictDialog, type DraftConflict, type DraftConflictChoice } from './draft-conflict-dialog';
-import { DraftStore } from './draft-store';
+import { DraftStore, modelIssues } from './draft-store';
 import { FileIssuesDialog, type FileIssues } from './file-issues-dialog';
 import { IssueRevisionDialog } from './issue-revision-dialog';
 import { ModelRecords } from './model-records';
@@ -62,7 +62,10 @@ export class ModelEditor {
   protected readonly sif = signal<Sif | null>(null);
   protected readonly latestRevision = signal<number | null>(null);
   protected readonly loadError = signal<string | null>(null);
+  /** An action that reads the saved draft is running (solve start, revision, import, export). */
   protected readonly busy = signal(false);
+  /** A file is being imported: the canvas is read-only meanwhile. */
+  protected readonly importing = signal(false);
   protected readonly canEdit = computed(() => {
     const project = this.project();
     return project !== null && !project.archived && canEditModels(project.myRole);
@@ -124,62 +127,74 @@ export class ModelEditor {
       });
   }
 
-  /** Saves, then checks the draft is a complete model file; lists its problems by path otherwise. */
-  private async readyToUse(action: string): Promise<boolean> {
-    if (!(await this.store.flush())) {
-      this.snackBar.open(`Save the draft first (${this.saveText().toLowerCase()}), then ${action}.`, 'Dismiss', { duration: 8000 });
-      return false;
-    }
-    const issues = this.store.issues();
-    if (issues.length === 0) return true;
-    this.showIssues({
-      title: `The model cannot be used to ${action} yet`,
-      intro: 'Fix these problems first; each is also marked on the canvas.',
-      lines: issues.map((issue) => `${issue.path}: ${issue.message}`),
-    });
-    return false;
+  /**
+   * Saves the draft, checks the saved content is a complete model file (listing its problems by path
+   * otherwise), then runs `action` on that saved version while autosave is held, so no save races with it.
+   */
+  private async withSavedDraft(action: string, run: (version: number) => Promise<void>): Promise<void> {
+    if (this.busy()) return;
+    this.busy.set(true);
+    const outcome = await this.store.whileHeld(async (saved) => {
+      const issues = modelIssues(saved.content);
+      if (issues.length > 0) {
+        this.showIssues({
+          title: `The model cannot be used to ${action} yet`,
+          intro: 'Fix these problems first; each is also marked on the canvas.',
+          lines: issues.map((issue) => `${issue.path}: ${issue.message}`),
+        });
+        return;
+      }
+      await run(saved.version);
+    }).finally(() => this.busy.set(false));
+    if (outcome.ran) return;
+    const why =
+      outcome.reason === 'conflict'
+        ? 'someone else saved a newer version: choose what to keep first'
+        : `the draft could not be saved (${this.store.error() ?? 'no answer from the server'}); your edits are kept and saving is retried`;
+    this.snackBar.open(`Not done: ${why}, then ${action} again.`, 'Dismiss', { duration: 10_000 });
   }
 
   protected async solve(): Promise<void> {
-    if (this.runner.running() || !(await this.readyToUse('solve'))) return;
-    try {
-      await this.runner.start(this.projectId(), this.modelId(), { kind: 'draft', version: this.store.version() });
-    } catch (error) {
-      this.errorHandler.handleError(error);
-    }
+    if (this.runner.running()) return;
+    await this.withSavedDraft('solve', async (version) => {
+      try {
+        await this.runner.start(this.projectId(), this.modelId(), { kind: 'draft', version });
+      } catch (error) {
+        this.errorHandler.handleError(error);
+      }
+    });
   }
 
   protected async issueRevision(): Promise<void> {
-    if (!(await this.readyToUse('issue a revision'))) return;
-    const reason = await new Promise<string | undefined>((resolve) =>
-      this.dialog.open<IssueRevisionDialog, void, string>(IssueRevisionDialog).afterClosed().subscribe(resolve),
-    );
-    if (!reason) return;
-    this.busy.set(true);
-    try {
-      const revision = await this.records.issueRevision(this.projectId(), this.modelId(), this.store.version(), reason);
-      this.latestRevision.set(revision.number);
-      this.snackBar.open(`Revision ${revision.number} issued.`, 'OK', { duration: 5000 });
-    } catch (error) {
-      this.errorHandler.handleError(error);
-    } finally {
-      this.busy.set(false);
-    }
+    await this.withSavedDraft('issue a revision', async (version) => {
+      const reason = await new Promise<string | undefined>((resolve) =>
+        this.dialog.open<IssueRevisionDialog, void, string>(IssueRevisionDialog).afterClosed().subscribe(resolve),
+      );
+      if (!reason) return;
+      try {
+        const revision = await this.records.issueRevision(this.projectId(), this.modelId(), version, reason);
+        this.latestRevision.set(revision.number);
+        this.snackBar.open(`Revision ${revision.number} issued.`, 'OK', { duration: 5000 });
+      } catch (error) {
+        this.errorHandler.handleError(error);
+      }
+    });
   }
 
   protected async exportFile(): Promise<void> {
-    if (!(await this.readyToUse('export it'))) return;
-    try {
-      const blob = await this.records.exportFile(this.projectId(), this.modelId());
-      const url = URL.createObjectURL(blob);
-      const link = document.createElement('a');
-      link.href = url;
-      link.download = `${(this.store.model()?.name ?? 'model').replace(/[^A-Za-z0-9_.-]+/g, '-')}.proofline.json`;
-      link.click();
-      setTimeout(() => URL.revokeObjectURL(url));
-    } catch (error) {
-      this.errorHandler.handleError(error);
-    }
+    await this.withSavedDraft('export it', async () => {
+      try {
+        const blob = await this.records.exportFile(this.projectId(), this.modelId());
+        const url = URL.createObjectURL(blob);
+        const link = document.createElement('a');
+        link.href = url;
+        link.download = `${(this.store.model()?.name ?? 'model').replace(/[^A-Za-z0-9_.-]+/g, '-')}.proofline.json`;
+        link.click();
+        setTimeout(() => URL.revokeObjectURL(url));
+      } catch (error) {
+        this.errorHandler.handleError(error);
+      }
+    });
   }
 
   protected async importFile(input: HTMLInputElement): Promise<void> {
@@ -202,12 +217,23 @@ export class ModelEditor {
       this.showIssues({ title: 'Another kind of model', intro: 'Nothing was imported.', lines: [`kind: the file is a ${checked.data.kind} model; this model is a ${this.store.model()?.kind}. Import it as a new model from the model list.`] });
       return;
     }
-    if (!(await this.store.flush())) return;
+    if (this.busy()) return;
+    // The canvas is read-only while the file goes in, so no edit lands between the save and the import.
+    this.busy.set(true);
+    this.importing.set(true);
     try {
-      this.store.replaceWithStored(await this.records.importFile(this.projectId(), this.modelId(), this.store.version(), checked.data));
-      this.snackBar.open(`Imported ${file.name}. Undo (Ctrl+Z) brings back what was there before.`, 'OK', { duration: 8000 });
-    } catch (error) {
-      this.errorHandler.handleError(error);
+      const outcome = await this.store.whileHeld(async (saved) => {
+        try {
+          this.store.replaceWithStored(await this.records.importFile(this.projectId(), this.modelId(), saved.version, checked.data));
+          this.snackBar.open(`Imported ${file.name}. Undo (Ctrl+Z) brings back what was there before.`, 'OK', { duration: 8000 });
+        } catch (error) {
+          this.errorHandler.handleError(error);
+        }
+      });
+      if (!outcome.ran) this.snackBar.open(`Nothing was imported: save the draft first (${this.saveText().toLowerCase()}), then import again.`, 'Dismiss', { duration: 10_000 });
+    } finally {
+      this.busy.set(false);
+      this.importing.set(false);
     }
   }
 

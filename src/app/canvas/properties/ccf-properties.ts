@@ -37,14 +37,14 @@ import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId, f
         </mat-select>
       </mat-form-field>
       <div class="row">
-        <mat-form-field>
+        <mat-form-field floatLabel="always">
           <mat-label>β (DU failures)</mat-label>
           <input matInput formControlName="beta" inputmode="decimal" />
           <span matTextSuffix>%</span>
           <mat-error>{{ message('β', form.controls.beta) }}</mat-error>
         </mat-form-field>
-        <mat-form-field>
-          <mat-label>βD (DD failures, optional)</mat-label>
+        <mat-form-field floatLabel="always">
+          <mat-label>βD (DD failures)</mat-label>
           <input matInput formControlName="betaD" inputmode="decimal" />
           <span matTextSuffix>%</span>
           <mat-hint>β when empty</mat-hint>

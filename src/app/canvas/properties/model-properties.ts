@@ -27,7 +27,7 @@ export interface ModelHeader {
         <mat-error>The name is required (at most 200 characters).</mat-error>
       </mat-form-field>
       <div class="row">
-        <mat-form-field>
+        <mat-form-field floatLabel="always">
           <mat-label>Mission time</mat-label>
           <input matInput formControlName="missionTime" inputmode="decimal" />
           <span matTextSuffix>{{ unitLabel() }}</span>

@@ -16,7 +16,7 @@ import { numberControl, numberMessage, readControl, formValueSignal } from './ty
     <form [formGroup]="form" class="properties" novalidate>
       <p class="muted">From {{ transition().from }} to {{ transition().to }}</p>
       <div class="row">
-        <mat-form-field>
+        <mat-form-field floatLabel="always">
           <mat-label>Rate</mat-label>
           <input matInput formControlName="rate" inputmode="decimal" />
           <span matTextSuffix>{{ unitLabel() }}</span>
