@@ -101,15 +101,19 @@ export class ModelCanvas {
   protected readonly highlighted = computed(() => new Set(this.focus.highlighted()));
   protected readonly status = signal('');
   private clipboard: Clipboard | null = null;
+  /** The automatic layout running now, if any, until its positions are in the model. */
+  private layoutRun: Promise<void> | null = null;
   private rendered = false;
   private autoLaidOut = false;
   private destroyed = false;
 
   constructor() {
     inject(DestroyRef).onDestroy(() => (this.destroyed = true));
-    // A model without stored positions (imported, generated) is laid out once, as soon as it is shown.
+    // A model without stored positions (imported, generated) is laid out once, as soon as it is shown;
+    // once every card has a position, a later import without positions is laid out again.
     effect(() => {
-      if (this.view().needsLayout && !this.readOnly() && !this.autoLaidOut && this.view().nodes.length > 0) {
+      if (!this.view().needsLayout) this.autoLaidOut = false;
+      else if (!this.readOnly() && !this.autoLaidOut && this.view().nodes.length > 0) {
         this.autoLaidOut = true;
         untracked(() => void this.layout(true));
       }
@@ -303,9 +307,25 @@ export class ModelCanvas {
     this.edit.emit(moveNodes(this.model(), moves));
   }
 
+  /**
+   * Resolves once a layout in progress has put its positions into the model (at once when none runs), so
+   * that an action reading the saved draft (a solve) includes them instead of racing with them.
+   */
+  settled(): Promise<void> {
+    return this.layoutRun ?? Promise.resolve();
+  }
+
   /** Lays the model out with ELK (in the worker) and stores the positions in its layout. */
-  protected async layout(automatic: boolean): Promise<void> {
-    if (this.readOnly() || this.laying()) return;
+  protected layout(automatic: boolean): Promise<void> {
+    if (this.readOnly() || this.laying()) return this.settled();
+    const run = this.runLayout(automatic).finally(() => {
+      if (this.layoutRun === run) this.layoutRun = null;
+    });
+    this.layoutRun = run;
+    return run;
+  }
+
+  private async runLayout(automatic: boolean): Promise<void> {
     const model = this.model();
     const view = this.view();
     this.laying.set(true);

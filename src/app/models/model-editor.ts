@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, ErrorHandler, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, ErrorHandler, computed, effect, inject, input, signal, untracked, viewChild } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIcon } from '@angular/material/icon';
@@ -57,6 +57,8 @@ export class ModelEditor {
   readonly projectId = input.required<string>();
   readonly sifId = input.required<string>();
   readonly modelId = input.required<string>();
+
+  private readonly canvas = viewChild(ModelCanvas);
 
   protected readonly project = signal<Project | null>(null);
   protected readonly sif = signal<Sif | null>(null);
@@ -134,6 +136,8 @@ export class ModelEditor {
   private async withSavedDraft(action: string, run: (version: number) => Promise<void>): Promise<void> {
     if (this.busy()) return;
     this.busy.set(true);
+    // An automatic layout still running (a model opened without positions) goes into the draft first.
+    await this.canvas()?.settled();
     const outcome = await this.store.whileHeld(async (saved) => {
       const issues = modelIssues(saved.content);
       if (issues.length > 0) {
@@ -222,6 +226,7 @@ export class ModelEditor {
     this.busy.set(true);
     this.importing.set(true);
     try {
+      await this.canvas()?.settled();
       const outcome = await this.store.whileHeld(async (saved) => {
         try {
           this.store.replaceWithStored(await this.records.importFile(this.projectId(), this.modelId(), saved.version, checked.data));
