@@ -56,7 +56,8 @@ export const revisionDiffQuery = z.object({
 });
 export type RevisionDiffQuery = z.input<typeof revisionDiffQuery>;
 
-const fieldChange = z.object({ field: z.string(), old: z.unknown(), new: z.unknown() });
+/** old is absent for an added item's fields, new for a removed item's (JSON has no undefined). */
+const fieldChange = z.object({ field: z.string(), old: z.unknown().optional(), new: z.unknown().optional() });
 export const itemChange = z.object({
   kind: z.string(),
   id: z.string(),

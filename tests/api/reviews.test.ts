@@ -214,6 +214,24 @@ describe('revision diff', () => {
     expect((await (await signedInAgent(context.app, 'outsider')).get(`/api/projects/${world.projectA}/models/${modelId}/diff?from=1&to=2`)).status).toBe(404);
   });
 
+  it('lists an added item with its new fields and a removed one with its old fields, in the shape the client reads', async () => {
+    const { modelId } = await issuedModel(context.app, world);
+    const withGroup = { ...transmitterPair(), ccf: [{ id: 'CCF-PT', members: ['PT-A', 'PT-B'], beta: 0.05, model: 'beta' as const }] };
+    await issueNext(context.app, world, modelId, withGroup);
+    const viewer = await signedInAgent(context.app, 'viewer');
+    const added = await viewer.get(`/api/projects/${world.projectA}/models/${modelId}/diff?from=1&to=2`);
+    expect(added.status).toBe(200);
+    // The client parses the answer with the same schema: an added item's fields have no old value on the wire.
+    expect(revisionDiff.parse(added.body).items).toEqual([
+      { kind: 'ccf', id: 'CCF-PT', change: 'added', fields: [{ field: 'members', new: ['PT-A', 'PT-B'] }, { field: 'beta', new: 0.05 }, { field: 'model', new: 'beta' }] },
+    ]);
+    expect(added.body.items[0].fields[0]).not.toHaveProperty('old');
+    const removed = revisionDiff.parse((await viewer.get(`/api/projects/${world.projectA}/models/${modelId}/diff?from=2&to=1`)).body);
+    expect(removed.items).toEqual([
+      { kind: 'ccf', id: 'CCF-PT', change: 'removed', fields: [{ field: 'members', old: ['PT-A', 'PT-B'] }, { field: 'beta', old: 0.05 }, { field: 'model', old: 'beta' }] },
+    ]);
+  });
+
   it('compares the stored results of both revisions, the latest succeeded solve of each', async () => {
     const { modelId } = await issuedModel(context.app, world);
     await issueNext(context.app, world, modelId, transmitterPair(4.0e-7));

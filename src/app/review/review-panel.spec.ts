@@ -205,6 +205,72 @@ describe('ReviewPanel', () => {
     expect(pins.pins().size).toBe(0);
   });
 
+  it('filters the threads by status and severity through the API and shows what it answers', async () => {
+    const { fixture, element } = await render(REVIEWER, [thread({})]);
+    const status = element.querySelector<HTMLSelectElement>('select[name="status-filter"]')!;
+    status.value = 'resolved';
+    status.dispatchEvent(new Event('change'));
+    await settle(fixture);
+    const reload = () => {
+      http.expectOne(`/api/projects/${PROJECT}/members`).flush([{ userId: REVIEWER, username: 'reviewer', displayName: 'Rhea', role: 'reviewer' }]);
+      http.expectOne(`/api/projects/${PROJECT}/sifs/${SIF}/reviews`).flush([ROUND]);
+      return http.expectOne((request) => request.url === `/api/projects/${PROJECT}/models/${MODEL}/annotations`);
+    };
+    const byStatus = reload();
+    expect([byStatus.request.params.get('status'), byStatus.request.params.get('severity')]).toEqual(['resolved', null]);
+    byStatus.flush({ revision: 2, annotations: [] });
+    await settle(fixture);
+    http.expectOne(`/api/projects/${PROJECT}/models/${MODEL}/revisions/2`).flush({
+      id: '00000000-0000-4000-8000-0000000000c1', modelId: MODEL, number: 2, contentHash: 'h', reason: 'r', issuedAt: AT, issuedById: ENGINEER, issuedByDisplayName: 'Ezra', content: FILE,
+    });
+    await settle(fixture);
+    expect(element.querySelector('.threads')?.textContent?.trim()).toBe('No annotations.');
+
+    const severity = element.querySelector<HTMLSelectElement>('select[name="severity-filter"]')!;
+    severity.value = 'must-fix';
+    severity.dispatchEvent(new Event('change'));
+    await settle(fixture);
+    const both = reload();
+    expect([both.request.params.get('status'), both.request.params.get('severity')]).toEqual(['resolved', 'must-fix']);
+    both.flush({ revision: 2, annotations: [thread({ status: 'resolved' })] });
+    await settle(fixture);
+    http.expectOne(`/api/projects/${PROJECT}/models/${MODEL}/revisions/2`).flush({
+      id: '00000000-0000-4000-8000-0000000000c1', modelId: MODEL, number: 2, contentHash: 'h', reason: 'r', issuedAt: AT, issuedById: ENGINEER, issuedByDisplayName: 'Ezra', content: FILE,
+    });
+    await settle(fixture);
+    expect(element.querySelector('[data-annotation="TOP"]')?.getAttribute('data-status')).toBe('resolved');
+  });
+
+  it('compares two revisions: each changed field old -> new, the results side by side, and the changed items outlined on the canvas', async () => {
+    const { fixture, element } = await render(ENGINEER, []);
+    const diff = element.querySelector<HTMLElement>('[aria-label="Revision diff"]')!;
+    expect(diff.querySelector<HTMLSelectElement>('select[name="diff-from"]')!.value).toBe('1');
+    expect(diff.querySelector<HTMLSelectElement>('select[name="diff-to"]')!.value).toBe('2');
+    [...diff.querySelectorAll('button')].find((button) => button.textContent?.trim() === 'Compare')!.click();
+    await settle(fixture);
+    const request = http.expectOne((candidate) => candidate.url === `/api/projects/${PROJECT}/models/${MODEL}/diff`);
+    expect([request.request.params.get('from'), request.request.params.get('to')]).toEqual(['1', '2']);
+    request.flush({
+      from: 1,
+      to: 2,
+      items: [
+        { kind: 'event', id: 'LS-B', change: 'changed', fields: [{ field: 'lambdaDU', old: 1e-6, new: 5e-7 }] },
+        { kind: 'ccf', id: 'CCF-LS', change: 'added', fields: [{ field: 'beta', new: 0.05 }, { field: 'members', new: ['LS-A', 'LS-B'] }] },
+      ],
+      results: [{ figure: 'pfdAvg', old: 0.0044, new: 0.0025 }],
+    });
+    await settle(fixture);
+    const [items, results] = [...diff.querySelectorAll('table.diff')];
+    const rows = [...items!.querySelectorAll('tbody tr')].map((row) => [...row.querySelectorAll('td')].map((cell) => cell.textContent?.trim()));
+    expect(rows).toEqual([
+      ['event LS-B', 'changed', 'lambdaDU', '0.000001', '5e-7'],
+      ['ccf CCF-LS', 'added', 'beta', '—', '0.05'],
+      ['', '', 'members', '—', '["LS-A","LS-B"]'],
+    ]);
+    expect([...results!.querySelectorAll('tbody td')].map((cell) => cell.textContent?.trim())).toEqual(['pfdAvg', '0.0044', '0.0025']);
+    expect(TestBed.inject(CanvasFocus).highlighted()).toEqual(['LS-B', 'CCF-LS']);
+  });
+
   it('offers approve and return to a chosen reviewer, not to the author who asked', async () => {
     const reviewer = await render(REVIEWER, []);
     const buttons = [...reviewer.element.querySelectorAll('button')].map((button) => button.textContent?.trim());
