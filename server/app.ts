@@ -24,6 +24,7 @@ import { mailRouter } from './mail/mail-router.js';
 import { createNotifier, type MailDeps } from './mail/notifier.js';
 import { reviewsRouter } from './reviews/reviews-router.js';
 import { refuseCrossSiteChanges } from './security/cross-site-requests.js';
+import { createPermissionGuard } from './security/permission-guard.js';
 
 export interface AppDeps {
   readonly db: Database;
@@ -72,7 +73,6 @@ export function createApp(deps: AppDeps): Express {
 
   const api = express.Router();
   api.use(refuseCrossSiteChanges);
-  api.use(express.json({ limit: '1mb' }));
   api.use((_req, res, next) => {
     res.setHeader('Cache-Control', 'no-store');
     next();
@@ -87,6 +87,10 @@ export function createApp(deps: AppDeps): Express {
   );
   api.use(passport.initialize());
   api.use(passport.session());
+  // Who may call each route is checked before any body is read (server/security/permission-guard.ts).
+  const guard = createPermissionGuard(deps.db);
+  api.use(guard.router);
+  api.use(express.json({ limit: '1mb' }));
 
   // One line per resource.
   api.use(authRouter(context, { passport, signInLimit: deps.signInLimit ?? { failures: 10, windowMinutes: 15 } }));
@@ -104,6 +108,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(auditRouter(context));
   api.use(mailRouter(notifier));
 
+  guard.cover(api, '/api');
   api.use(unknownApiRoute);
   app.use('/api', api);
 

@@ -82,6 +82,11 @@ describe('audit trail', () => {
     const outsider = await signedInAgent(context.app, 'outsider');
     expect((await outsider.get(`/api/projects/${world.projectA}/audit`)).status).toBe(404);
     expect((await outsider.get(`/api/projects/${world.projectA}/audit/csv`)).status).toBe(404);
-    expect((await outsider.get(`/api/projects/${world.projectA}/audit?sifId=nope`)).status).toBe(400);
+    // The permission is checked before the query: a non-member learns nothing from a malformed one either.
+    expect((await outsider.get(`/api/projects/${world.projectA}/audit?sifId=nope`)).status).toBe(404);
+    const member = await signedInAgent(context.app, 'viewer');
+    const malformed = await member.get(`/api/projects/${world.projectA}/audit?sifId=nope`);
+    expect(malformed.status).toBe(400);
+    expect(malformed.body.error.details.issues[0].path).toBe('sifId');
   });
 });

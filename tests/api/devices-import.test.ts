@@ -156,7 +156,10 @@ describe('device CSV import', () => {
     const reviewer = await signedInAgent(app, 'reviewer');
     const refused = await reviewer.post('/api/devices/import/preview').send({ csv: GOOD_FIT_CSV, mapping: MAPPING, rateUnit: 'fit' });
     expect(refused.status).toBe(403);
-    const badUnit = await reviewer.post('/api/devices/import/preview').send({ csv: GOOD_FIT_CSV, rateUnit: 'per-fortnight' });
+    // The right to import is checked before the body: a reviewer is refused whatever they send.
+    expect((await reviewer.post('/api/devices/import/preview').send({ csv: GOOD_FIT_CSV, rateUnit: 'per-fortnight' })).status).toBe(403);
+    const engineer = await signedInAgent(app, 'engineer');
+    const badUnit = await engineer.post('/api/devices/import/preview').send({ csv: GOOD_FIT_CSV, rateUnit: 'per-fortnight' });
     expect(badUnit.status).toBe(400);
     expect(badUnit.body.error.details.issues[0]).toEqual({ path: 'rateUnit', message: 'must be perHour, fit or perYear' });
   });
