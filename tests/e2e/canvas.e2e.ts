@@ -1,8 +1,9 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import type { Browser, Locator, Page } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { launchChromium, screenshot, watchForPageErrors } from './browser.js';
+import { dragConnect, dropFromPalette, selectCard } from './canvas-steps.js';
 
 // The seeded demo workspace (server/seed/demo-workspace.ts): the demo engineer, and TZT-1310, a SIF in
 // draft status of the terminal project (mission ten years).
@@ -21,41 +22,6 @@ function startSolverProcess(): ChildProcess {
     stdio: ['ignore', 'inherit', 'inherit'],
   });
   return child;
-}
-
-/** Drags a palette entry onto the canvas, letting go at (x, y) relative to the canvas's top-left corner. */
-async function dropFromPalette(page: Page, kind: string, x: number, y: number): Promise<void> {
-  const entry = page.locator(`[data-palette="${kind}"]`);
-  const from = await box(entry);
-  const flow = await box(page.locator('f-flow'));
-  await page.mouse.move(from.x + 12, from.y + 12);
-  await page.mouse.down();
-  await page.mouse.move(from.x + 40, from.y + 30, { steps: 4 });
-  await page.mouse.move(flow.x + x + 12, flow.y + y + 12, { steps: 12 });
-  await page.mouse.up();
-}
-
-/** Drags from a card's output to another card's input. */
-async function dragConnect(page: Page, source: string, target: string): Promise<void> {
-  const from = await box(page.locator(`[data-node="${source}"] .port-out`));
-  const to = await box(page.locator(`[data-node="${target}"] .port-in`));
-  await page.mouse.move(from.x + from.width / 2, from.y + from.height / 2);
-  await page.mouse.down();
-  await page.mouse.move(from.x + from.width / 2, from.y - 30, { steps: 4 });
-  await page.mouse.move(to.x + to.width / 2, to.y + to.height / 2, { steps: 15 });
-  await page.mouse.up();
-}
-
-async function box(locator: Locator): Promise<{ x: number; y: number; width: number; height: number }> {
-  await locator.waitFor();
-  const found = await locator.boundingBox();
-  if (!found) throw new Error(`no bounding box for ${locator.toString()}`);
-  return found;
-}
-
-async function selectCard(page: Page, node: string): Promise<void> {
-  await page.locator(`[data-node="${node}"] .card-title`).click();
-  await page.locator('pl-properties-panel h2').filter({ hasText: node.slice(node.indexOf(':') + 1) }).waitFor();
 }
 
 /**

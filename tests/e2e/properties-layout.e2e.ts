@@ -1,11 +1,8 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { launchChromium, screenshot, watchForPageErrors } from './browser.js';
+import { openNewFaultTree } from './canvas-steps.js';
 
-// The seeded demo workspace (server/seed/demo-workspace.ts): the demo engineer and TZT-1310 of the terminal project.
-const ENGINEER = { username: 'engineer', password: 'proofline-engineer' };
-const DEMO_PROJECT = 'Brackwater Point Gas Terminal: export compression';
-const SIF_TAG = 'TZT-1310';
 
 interface Box {
   readonly x: number;
@@ -75,17 +72,7 @@ describe('the properties panel layout in a browser', () => {
   });
 
   it('keeps every field label clear of its unit and uncut, empty or filled, in the event, group and model forms', async () => {
-    await page.goto(`${inject('baseUrl')}/projects`);
-    await page.waitForURL(/\/sign-in/);
-    await page.getByLabel('Username').fill(ENGINEER.username);
-    await page.getByLabel('Password').fill(ENGINEER.password);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(/\/projects$/);
-    await page.getByText(DEMO_PROJECT, { exact: true }).click();
-    await page.locator('tr.mat-mdc-row', { hasText: SIF_TAG }).first().click();
-    await page.locator('[data-sif-models-link]').click();
-    await page.getByRole('button', { name: 'New fault tree' }).click();
-    await page.waitForURL(/\/models\/[^/]+$/);
+    await openNewFaultTree(page, inject('baseUrl'));
     await page.locator('[data-node="event:E1"] .card-title').click();
     await page.locator('pl-properties-panel h2').filter({ hasText: 'E1' }).waitFor();
     for (const name of ['Proof tested', 'Partially tested']) {

@@ -30,6 +30,8 @@ import { MatTooltip } from '@angular/material/tooltip';
 import type { ValidationIssue } from '../../../shared/api/errors.js';
 import { AutoLayout } from './auto-layout';
 import { CanvasFocus } from './canvas-focus';
+import { CardSizeWatch, CardSizes } from './card-sizes';
+import { commonCauseBands } from './common-cause-bands';
 import { canvasView, type CanvasNode } from './canvas-view';
 import { layoutFromElk, layoutGraph } from './layout-graph';
 import {
@@ -61,7 +63,8 @@ const PASTE_OFFSET = { x: 40, y: 40 };
  */
 @Component({
   selector: 'pl-model-canvas',
-  imports: [FFlowModule, Palette, PinMarker, PropertiesPanel, MatIconButton, MatIcon, MatTooltip],
+  imports: [FFlowModule, Palette, PinMarker, PropertiesPanel, CardSizeWatch, MatIconButton, MatIcon, MatTooltip],
+  providers: [CardSizes],
   templateUrl: './model-canvas.html',
   styleUrl: './model-canvas.scss',
   host: { '(document:keydown)': 'onKeydown($event)' },
@@ -72,6 +75,7 @@ export class ModelCanvas {
   private readonly focus = inject(CanvasFocus);
   private readonly snackBar = inject(MatSnackBar);
   private readonly errorHandler = inject(ErrorHandler);
+  private readonly cardSizes = inject(CardSizes);
 
   readonly model = input.required<EditableModel>();
   readonly issues = input<readonly ValidationIssue[]>([]);
@@ -88,6 +92,8 @@ export class ModelCanvas {
 
   protected readonly markerEnd = EFMarkerType.END_ALL_STATES;
   protected readonly view = computed(() => canvasView(this.model(), this.issues()));
+  /** Recomputed when the model or a wrapped card's size changes, never while the view pans. */
+  protected readonly bands = computed(() => (this.model().kind === 'fault-tree' ? commonCauseBands(this.view().nodes, this.cardSizes.measured()) : []));
   protected readonly issuesById = computed(() => {
     const byId = new Map<string, readonly string[]>();
     for (const item of [...this.view().nodes, ...this.view().connections]) if (item.issues.length > 0) byId.set(item.id, item.issues);
