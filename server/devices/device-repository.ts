@@ -1,21 +1,44 @@
-import { and, asc, count, desc, eq, ilike, inArray, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, exists, ilike, inArray, isNotNull, isNull, or, sql, type SQL } from 'drizzle-orm';
 import {
   derivedFractions,
   type DeviceEvidence,
   type DeviceFields,
   type DeviceSummary,
   type DeviceVersion,
+  DEVICE_ARCHIVE_FILTERS,
 } from '../../shared/api/devices.js';
+import type { DraftContent } from '../../shared/api/models.js';
 import type { ProjectRole } from '../../shared/api/projects.js';
 import type { Queryable } from '../db/client.js';
 import { deviceEvidence, devices, deviceVersions, type DeviceEvidenceRow, type DeviceVersionRow } from '../db/schema/devices.js';
+import { modelRevisions, models } from '../db/schema/models.js';
 import { projectMembers, projects } from '../db/schema/projects.js';
+import { sifs } from '../db/schema/sifs.js';
 import { users } from '../db/schema/users.js';
 
 export interface DeviceFilter {
   readonly search?: string;
   readonly category?: DeviceFields['category'];
   readonly ids?: readonly string[];
+  /** Default all: the service hides archived records where the user picks. */
+  readonly archived?: (typeof DEVICE_ARCHIVE_FILTERS)[number];
+}
+
+/** Whose models a usage query may see: a member's projects, or every project (site admin, or the delete check). */
+export type UsageScope = { readonly memberId: string } | 'every-project';
+
+/** A model draft or issued revision whose content links to the record, with where it lives. */
+export interface LinkingModel {
+  readonly projectId: string;
+  readonly projectName: string;
+  readonly projectArchived: boolean;
+  readonly sifId: string;
+  readonly sifTag: string;
+  readonly modelId: string;
+  readonly modelName: string;
+  readonly place: 'draft' | 'revision';
+  readonly placeNumber: number;
+  readonly content: DraftContent;
 }
 
 /** A new version to write: its figures and note, by whom. */
@@ -94,6 +117,13 @@ function likePattern(text: string): string {
 export function deviceRepository(db: Queryable) {
   const currentVersionJoin = and(eq(deviceVersions.deviceId, devices.id), eq(deviceVersions.version, devices.currentVersion));
 
+  /** The record's current version and whether it is archived (locked for the transaction when asked). */
+  async function recordState(deviceId: string, forUpdate = false): Promise<{ currentVersion: number; archived: boolean } | undefined> {
+    const query = db.select({ currentVersion: devices.currentVersion, archivedAt: devices.archivedAt }).from(devices).where(eq(devices.id, deviceId));
+    const [row] = forUpdate ? await query.for('update') : await query;
+    return row ? { currentVersion: row.currentVersion, archived: row.archivedAt !== null } : undefined;
+  }
+
   return {
     /** The user's roles in projects that are not archived (one entry per membership). */
     async activeRolesOf(userId: string): Promise<ProjectRole[]> {
@@ -103,6 +133,12 @@ export function deviceRepository(db: Queryable) {
         .innerJoin(projects, eq(projects.id, projectMembers.projectId))
         .where(and(eq(projectMembers.userId, userId), eq(projects.archived, false)));
       return rows.map((row) => row.role);
+    },
+
+    /** The projects the user is a member of (archived or not). */
+    async projectIdsOf(userId: string): Promise<string[]> {
+      const rows = await db.select({ projectId: projectMembers.projectId }).from(projectMembers).where(eq(projectMembers.userId, userId));
+      return rows.map((row) => row.projectId);
     },
 
     /** Whether the user is a member of any project, archived or not. */
@@ -120,26 +156,89 @@ export function deviceRepository(db: Queryable) {
       }
       if (filter.category) conditions.push(eq(deviceVersions.category, filter.category));
       if (filter.ids) conditions.push(filter.ids.length > 0 ? inArray(devices.id, [...filter.ids]) : sql`false`);
+      if (filter.archived === 'active') conditions.push(isNull(devices.archivedAt));
+      if (filter.archived === 'archived') conditions.push(isNotNull(devices.archivedAt));
       const evidenceCount = db
         .select({ deviceId: deviceEvidence.deviceId, n: count().as('n') })
         .from(deviceEvidence)
         .groupBy(deviceEvidence.deviceId)
         .as('evidence_count');
       const rows = await db
-        .select({ version: deviceVersions, authorName: users.displayName, evidenceCount: evidenceCount.n })
+        .select({ version: deviceVersions, authorName: users.displayName, evidenceCount: evidenceCount.n, archivedAt: devices.archivedAt })
         .from(devices)
         .innerJoin(deviceVersions, currentVersionJoin)
         .innerJoin(users, eq(users.id, deviceVersions.createdById))
         .leftJoin(evidenceCount, eq(evidenceCount.deviceId, devices.id))
         .where(conditions.length > 0 ? and(...conditions) : undefined)
         .orderBy(asc(sql`lower(${deviceVersions.maker})`), asc(sql`lower(${deviceVersions.model})`));
-      return rows.map((row) => ({ ...toVersion(row.version, row.authorName), id: row.version.deviceId, evidenceCount: Number(row.evidenceCount ?? 0) }));
+      return rows.map((row) => ({
+        ...toVersion(row.version, row.authorName),
+        id: row.version.deviceId,
+        evidenceCount: Number(row.evidenceCount ?? 0),
+        archivedAt: row.archivedAt?.toISOString() ?? null,
+      }));
     },
 
     async currentVersionNumber(deviceId: string, forUpdate = false): Promise<number | undefined> {
-      const query = db.select({ currentVersion: devices.currentVersion }).from(devices).where(eq(devices.id, deviceId));
-      const [row] = forUpdate ? await query.for('update') : await query;
-      return row?.currentVersion;
+      return (await recordState(deviceId, forUpdate))?.currentVersion;
+    },
+
+    state: recordState,
+
+    /** Archives (userId) or restores (null) a record; false when there is no such record. */
+    async setArchived(deviceId: string, userId: string | null): Promise<boolean> {
+      const changed = await db
+        .update(devices)
+        .set(userId === null ? { archivedAt: null, archivedById: null } : { archivedAt: sql`now()`, archivedById: userId })
+        .where(eq(devices.id, deviceId))
+        .returning({ id: devices.id });
+      return changed.length > 0;
+    },
+
+    /** Deletes a record with its versions and evidence (cascade). */
+    async deleteDevice(deviceId: string): Promise<boolean> {
+      const removed = await db.delete(devices).where(eq(devices.id, deviceId)).returning({ id: devices.id });
+      return removed.length > 0;
+    },
+
+    /**
+     * The model drafts and issued revisions whose content has an event linked to the record (jsonb
+     * containment on events[].device.id), in the projects the scope may see.
+     */
+    async modelsLinkingTo(deviceId: string, scope: UsageScope): Promise<LinkingModel[]> {
+      const linksTo = (content: SQL) => sql`${content} @> ${JSON.stringify({ events: [{ device: { id: deviceId } }] })}::jsonb`;
+      const visible =
+        scope === 'every-project'
+          ? undefined
+          : exists(
+              db
+                .select({ one: sql`1` })
+                .from(projectMembers)
+                .where(and(eq(projectMembers.projectId, models.projectId), eq(projectMembers.userId, scope.memberId))),
+            );
+      const where = {
+        projectId: models.projectId,
+        projectName: projects.name,
+        projectArchived: projects.archived,
+        sifId: models.sifId,
+        sifTag: sifs.tag,
+        modelId: models.id,
+        modelName: models.name,
+      };
+      const drafts = await db
+        .select({ ...where, placeNumber: models.draftVersion, content: models.draftContent })
+        .from(models)
+        .innerJoin(projects, eq(projects.id, models.projectId))
+        .innerJoin(sifs, eq(sifs.id, models.sifId))
+        .where(and(linksTo(sql`${models.draftContent}`), visible));
+      const revisions = await db
+        .select({ ...where, placeNumber: modelRevisions.number, content: modelRevisions.content })
+        .from(modelRevisions)
+        .innerJoin(models, eq(models.id, modelRevisions.modelId))
+        .innerJoin(projects, eq(projects.id, models.projectId))
+        .innerJoin(sifs, eq(sifs.id, models.sifId))
+        .where(and(linksTo(sql`${modelRevisions.content}`), visible));
+      return [...drafts.map((row) => ({ ...row, place: 'draft' as const })), ...revisions.map((row) => ({ ...row, place: 'revision' as const }))];
     },
 
     async findVersion(deviceId: string, version: number): Promise<DeviceVersion | undefined> {

@@ -12,6 +12,8 @@ import {
   type DeviceFields,
   type deviceListQuery,
   type DeviceSummary,
+  type DeviceUsage,
+  type DeviceUsageEntry,
   type DeviceVersion,
   type ImportPreview,
   type ImportPreviewRow,
@@ -23,7 +25,7 @@ import type { SessionUser } from '../auth/session-user.js';
 import { uniqueViolation, type Database } from '../db/client.js';
 import { apiErrors } from '../errors.js';
 import { devicesToCsv, parseDeviceCsv, sameFigures } from './device-csv.js';
-import { deviceRepository, type DeviceRepository } from './device-repository.js';
+import { deviceRepository, type DeviceRepository, type LinkingModel } from './device-repository.js';
 import { detectEvidenceType } from './evidence-type.js';
 
 type ParsedCreate = z.output<typeof createDeviceBody>;
@@ -81,6 +83,18 @@ export function createDeviceService(db: Database) {
     return current;
   }
 
+  function archivedRefuses(doing: string) {
+    return apiErrors.conflict(`this library record is archived; restore it before you ${doing}`);
+  }
+
+  /** The current version of a record that is not archived (404 unknown, 409 archived). */
+  async function requireActiveDevice(repo: DeviceRepository, deviceId: string, doing: string, forUpdate = false): Promise<number> {
+    const state = await repo.state(deviceId, forUpdate);
+    if (!state) throw apiErrors.notFound('no device record with this id');
+    if (state.archived) throw archivedRefuses(doing);
+    return state.currentVersion;
+  }
+
   function identityTaken(fields: DeviceFields) {
     return apiErrors.alreadyExists('model', `the library already has "${fields.maker} ${fields.model}"; edit that record to add a version`);
   }
@@ -95,7 +109,7 @@ export function createDeviceService(db: Database) {
     }
   }
 
-  function buildPreview(body: ParsedPreview, existing: Map<string, { id: string; version: number; fields: DeviceFields }>): ImportPreview {
+  function buildPreview(body: ParsedPreview, existing: Map<string, { id: string; version: number; fields: DeviceFields; archived: boolean }>): ImportPreview {
     const parsed = parseDeviceCsv(body.csv, body.mapping, body.rateUnit);
     const firstLineOf = new Map<string, number>();
     const rows: ImportPreviewRow[] = parsed.rows.map((row) => {
@@ -107,8 +121,13 @@ export function createDeviceService(db: Database) {
       firstLineOf.set(key, row.line);
       const match = existing.get(key);
       if (!match) return { ...base, outcome: 'new' as const };
-      const outcome: ImportRowOutcome = sameFigures(match.fields, row.fields) ? 'unchanged' : 'new-version';
-      return { ...base, outcome, existing: { id: match.id, version: match.version } };
+      const same = sameFigures(match.fields, row.fields);
+      const found = { id: match.id, version: match.version };
+      if (match.archived && !same) {
+        const message = `"${row.fields.maker} ${row.fields.model}" is archived in the library; restore it before importing a new version`;
+        return { ...base, outcome: 'invalid' as const, existing: found, errors: [...row.errors, { path: 'model', message }] };
+      }
+      return { ...base, outcome: same ? ('unchanged' as const) : ('new-version' as const), existing: found };
     });
     const counts = Object.fromEntries(IMPORT_ROW_OUTCOMES.map((outcome) => [outcome, rows.filter((row) => row.outcome === outcome).length])) as Record<
       ImportRowOutcome,
@@ -118,8 +137,8 @@ export function createDeviceService(db: Database) {
   }
 
   async function existingByIdentity(repo: DeviceRepository) {
-    const all = await repo.list({});
-    return new Map(all.map((item) => [identityKey(item), { id: item.id, version: item.version, fields: item }]));
+    const all = await repo.list({ archived: 'all' });
+    return new Map(all.map((item) => [identityKey(item), { id: item.id, version: item.version, fields: item, archived: item.archivedAt !== null }]));
   }
 
   /** The writes of a confirmed import, in one transaction (the preview is computed again inside it). */
@@ -161,7 +180,9 @@ export function createDeviceService(db: Database) {
 
     async list(user: SessionUser, query: z.output<typeof deviceListQuery>): Promise<DeviceSummary[]> {
       await requireReader(user);
-      return repository.list({ search: query.search, category: query.category, ids: query.ids });
+      // The records a model links to resolve even when archived; searches and pickers see active ones.
+      const archived = query.archived ?? (query.ids ? 'all' : 'active');
+      return repository.list({ search: query.search, category: query.category, ids: query.ids, archived });
     },
 
     async get(user: SessionUser, deviceId: string): Promise<DeviceDetail> {
@@ -201,8 +222,7 @@ export function createDeviceService(db: Database) {
       return withIdentityCheck(fields, () =>
         db.transaction(async (tx) => {
           const repo = deviceRepository(tx);
-          const current = await repo.currentVersionNumber(deviceId, true);
-          if (current === undefined) throw apiErrors.notFound('no device record with this id');
+          const current = await requireActiveDevice(repo, deviceId, 'edit it', true);
           if (current !== body.basedOnVersion) {
             throw apiErrors.versionConflict(
               `this record is at version ${current}, not ${body.basedOnVersion}: someone saved a newer version; compare and edit again`,
@@ -234,20 +254,71 @@ export function createDeviceService(db: Database) {
       }
     },
 
+    /** The active records (archived ones are left out, as in the list). */
     async exportCsv(user: SessionUser): Promise<string> {
       await requireReader(user);
-      return devicesToCsv(await repository.list({}));
+      return devicesToCsv(await repository.list({ archived: 'active' }));
+    },
+
+    async archive(user: SessionUser, deviceId: string): Promise<DeviceDetail> {
+      await requireEditor(user, 'archive device records');
+      await requireDevice(deviceId);
+      await repository.setArchived(deviceId, user.id);
+      return detail(repository, deviceId);
+    },
+
+    async restore(user: SessionUser, deviceId: string): Promise<DeviceDetail> {
+      await requireEditor(user, 'restore device records');
+      await requireDevice(deviceId);
+      await repository.setArchived(deviceId, null);
+      return detail(repository, deviceId);
+    },
+
+    /** Deletes a record no model links to; while any draft or revision in any project does, 409 (archive instead). */
+    async remove(user: SessionUser, deviceId: string): Promise<void> {
+      await requireEditor(user, 'delete device records');
+      await db.transaction(async (tx) => {
+        const repo = deviceRepository(tx);
+        if (!(await repo.state(deviceId, true))) throw apiErrors.notFound('no device record with this id');
+        const linking = await repo.modelsLinkingTo(deviceId, 'every-project');
+        if (linking.length > 0) {
+          const seen = user.isAdmin ? linking : await visibleTo(repo, user, linking);
+          const named = [...new Set(seen.map((model) => `"${model.modelName}" of ${model.sifTag}`))];
+          const places = [...named.slice(0, 5), ...(named.length > 5 ? [`${named.length - 5} more`] : []), ...(seen.length < linking.length ? ['models in projects you are not a member of'] : [])];
+          throw apiErrors.conflict(
+            `this record cannot be deleted while models link to it (drafts or issued revisions): ${places.join(', ')}; archive it instead, which hides it from the pickers and keeps those links`,
+          );
+        }
+        await repo.deleteDevice(deviceId);
+      });
+    },
+
+    async usage(user: SessionUser, deviceId: string): Promise<DeviceUsage> {
+      await requireReader(user);
+      const currentVersion = await requireDevice(deviceId);
+      const linking = await repository.modelsLinkingTo(deviceId, user.isAdmin ? 'every-project' : { memberId: user.id });
+      const entries = linking.flatMap((model) => usageEntries(model, deviceId));
+      entries.sort(
+        (a, b) =>
+          a.projectName.localeCompare(b.projectName) ||
+          a.sifTag.localeCompare(b.sifTag) ||
+          a.modelName.localeCompare(b.modelName) ||
+          a.place.localeCompare(b.place) ||
+          b.placeNumber - a.placeNumber ||
+          a.eventId.localeCompare(b.eventId),
+      );
+      return { deviceId, currentVersion, entries };
     },
 
     /** Checked before the file is received, so a refused upload is not read into memory first. */
     async checkEvidenceUpload(user: SessionUser, deviceId: string): Promise<void> {
       await requireEditor(user, 'attach evidence to device records');
-      await requireDevice(deviceId);
+      await requireActiveDevice(repository, deviceId, 'attach evidence to it');
     },
 
     async addEvidence(user: SessionUser, deviceId: string, upload: EvidenceUpload) {
       await requireEditor(user, 'attach evidence to device records');
-      const current = await requireDevice(deviceId);
+      const current = await requireActiveDevice(repository, deviceId, 'attach evidence to it');
       const detected = detectEvidenceType(upload.bytes);
       if (!detected) {
         throw apiErrors.invalidField('file', 'must be a PDF, PNG or JPEG file (its content is none of these)');
@@ -278,9 +349,46 @@ export function createDeviceService(db: Database) {
 
     async removeEvidence(user: SessionUser, deviceId: string, evidenceId: string): Promise<void> {
       await requireEditor(user, 'remove evidence from device records');
+      await requireActiveDevice(repository, deviceId, 'remove evidence from it');
       if (!(await repository.deleteEvidence(deviceId, evidenceId))) throw apiErrors.notFound('no evidence file with this id on this record');
     },
   };
+}
+
+/** The models of the list in projects the user is a member of. */
+async function visibleTo(repo: DeviceRepository, user: SessionUser, linking: readonly LinkingModel[]): Promise<LinkingModel[]> {
+  const mine = new Set(await repo.projectIdsOf(user.id));
+  return linking.filter((model) => mine.has(model.projectId));
+}
+
+/** The events of a model's content that link to the record (the content may be an unfinished draft). */
+function usageEntries(model: LinkingModel, deviceId: string): DeviceUsageEntry[] {
+  const events = Array.isArray(model.content['events']) ? (model.content['events'] as unknown[]) : [];
+  return events.flatMap((event): DeviceUsageEntry[] => {
+    if (typeof event !== 'object' || event === null) return [];
+    const { id, label, device } = event as { id?: unknown; label?: unknown; device?: unknown };
+    if (typeof device !== 'object' || device === null) return [];
+    const link = device as { id?: unknown; version?: unknown; overrides?: unknown };
+    if (link.id !== deviceId || typeof link.version !== 'number' || !Number.isInteger(link.version) || link.version < 1) return [];
+    const overrides = Array.isArray(link.overrides) ? link.overrides : [];
+    return [
+      {
+        projectId: model.projectId,
+        projectName: model.projectName,
+        projectArchived: model.projectArchived,
+        sifId: model.sifId,
+        sifTag: model.sifTag,
+        modelId: model.modelId,
+        modelName: model.modelName,
+        place: model.place,
+        placeNumber: model.placeNumber,
+        eventId: typeof id === 'string' ? id : '(no id)',
+        eventLabel: typeof label === 'string' ? label : null,
+        linkedVersion: link.version,
+        overriddenFields: overrides.flatMap((item) => (typeof item === 'object' && item !== null && typeof (item as { field?: unknown }).field === 'string' ? [(item as { field: string }).field] : [])),
+      },
+    ];
+  });
 }
 
 function identityKey(fields: Pick<DeviceFields, 'maker' | 'model'>): string {

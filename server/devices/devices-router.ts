@@ -94,6 +94,27 @@ export function devicesRouter({ db }: AppContext): Router {
     res.json(await service.update(requireUser(req), deviceId, body));
   });
 
+  router.delete('/devices/:deviceId', async (req, res) => {
+    const { deviceId } = parseInput(deviceParams, req.params, 'params');
+    await service.remove(requireUser(req), deviceId);
+    res.status(204).end();
+  });
+
+  router.post('/devices/:deviceId/archive', async (req, res) => {
+    const { deviceId } = parseInput(deviceParams, req.params, 'params');
+    res.json(await service.archive(requireUser(req), deviceId));
+  });
+
+  router.post('/devices/:deviceId/restore', async (req, res) => {
+    const { deviceId } = parseInput(deviceParams, req.params, 'params');
+    res.json(await service.restore(requireUser(req), deviceId));
+  });
+
+  router.get('/devices/:deviceId/usage', async (req, res) => {
+    const { deviceId } = parseInput(deviceParams, req.params, 'params');
+    res.json(await service.usage(requireUser(req), deviceId));
+  });
+
   router.get('/devices/:deviceId/versions', async (req, res) => {
     const { deviceId } = parseInput(deviceParams, req.params, 'params');
     res.json(await service.listVersions(requireUser(req), deviceId));

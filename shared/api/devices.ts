@@ -15,6 +15,14 @@ import type { ProjectRole } from './projects.js';
  * - Edit (create, new versions, CSV import, evidence uploads and removal): site admins and leads or
  *   engineers of any project that is not archived.
  *
+ * - Archive, restore, delete: the same editors. Archiving hides a record from the list and the pickers
+ *   (no new links), while its versions stay readable so every model that links to it still resolves; an
+ *   archived record takes no new versions, imports or evidence until it is restored. Deleting removes a
+ *   record with its versions and evidence, and is refused (409) while any model draft or issued revision,
+ *   in any project, links to it: archive it instead.
+ * - Usage (which models, drafts, revisions and events link to which version): readers, each seeing only
+ *   the models of the projects they may read (their own, or all for a site admin).
+ *
  * Versioning: a record is a device with numbered versions 1, 2, ...; every edit writes a new version and
  * never changes an old one. A model event links to one version (shared/model-file.ts `device`), so a
  * model keeps the figures it used until someone updates the link.
@@ -133,6 +141,8 @@ export const uploadEvidenceFields = z.strictObject({ description: multiLine(500)
 export const deviceSummary = deviceVersion.extend({
   id: recordId,
   evidenceCount: z.number().int().min(0),
+  /** When the record was archived (hidden from the pickers, still readable); null while in use. */
+  archivedAt: timestamp.nullable().default(null),
 });
 export type DeviceSummary = z.infer<typeof deviceSummary>;
 
@@ -142,10 +152,17 @@ export type DeviceList = z.infer<typeof deviceList>;
 export const deviceDetail = deviceSummary.extend({ evidence: z.array(deviceEvidence) });
 export type DeviceDetail = z.infer<typeof deviceDetail>;
 
-/** GET /api/devices: optional text search (maker, model, description), category, and a list of ids. */
+/** Which records a list shows: active ones (default), archived ones too, or archived ones only. */
+export const DEVICE_ARCHIVE_FILTERS = ['active', 'all', 'archived'] as const;
+
+/**
+ * GET /api/devices: optional text search (maker, model, description), category, archive filter, and a
+ * list of ids. With ids the archive filter defaults to all, so the records a model links to resolve.
+ */
 export const deviceListQuery = z.object({
   search: singleLine(120).optional(),
   category: deviceCategory.optional(),
+  archived: z.enum(DEVICE_ARCHIVE_FILTERS, { message: `must be one of ${DEVICE_ARCHIVE_FILTERS.join(', ')}` }).optional(),
   /** Comma-separated record ids, e.g. to check the records a model links to. */
   ids: z
     .string()
@@ -276,6 +293,40 @@ export type ImportResult = z.infer<typeof importResult>;
 
 /** The CSV columns of GET /api/devices/export (rates per hour); the import reads the same headers. */
 export const EXPORT_COLUMNS = ['id', 'version', ...IMPORT_FIELDS, 'diagnosticCoverage', 'safeFailureFraction'] as const;
+
+// Where records are used ----------------------------------------------------------------------------
+
+/** Where a model links to a record: its working draft or one of its issued revisions. */
+export const DEVICE_USAGE_PLACES = ['draft', 'revision'] as const;
+
+/** One event of one model (draft or issued revision) that links to the record. */
+export const deviceUsageEntry = z.object({
+  projectId: recordId,
+  projectName: z.string(),
+  projectArchived: z.boolean(),
+  sifId: recordId,
+  sifTag: z.string(),
+  modelId: recordId,
+  modelName: z.string(),
+  place: z.enum(DEVICE_USAGE_PLACES),
+  /** The draft version, or the revision number. */
+  placeNumber: z.number().int().min(1),
+  eventId: z.string(),
+  eventLabel: z.string().nullable(),
+  /** The record version the event links to. */
+  linkedVersion: z.number().int().min(1),
+  /** Linked fields the event overrides (each with its reason in the model). */
+  overriddenFields: z.array(z.string()),
+});
+export type DeviceUsageEntry = z.infer<typeof deviceUsageEntry>;
+
+/** GET /api/devices/:deviceId/usage: the uses the caller may see, by project, SIF, model, place and event. */
+export const deviceUsage = z.object({
+  deviceId: recordId,
+  currentVersion: z.number().int().min(1),
+  entries: z.array(deviceUsageEntry),
+});
+export type DeviceUsage = z.infer<typeof deviceUsage>;
 
 /** Roles (in any project) that edit the library. */
 export const DEVICE_EDIT_ROLES = ['lead', 'engineer'] as const satisfies readonly ProjectRole[];

@@ -79,6 +79,10 @@
  * POST   /api/devices/import/confirm            editor       importConfirmBody      200 importResult (invalid rows: 400 unless skipInvalidRows)
  * GET    /api/devices/:deviceId                 reader       -                      200 deviceDetail
  * PUT    /api/devices/:deviceId                 editor       updateDeviceBody       200 deviceDetail (new version; stale: 409 version_conflict)
+ * DELETE /api/devices/:deviceId                 editor       -                      204 (a model draft or revision links to it: 409 conflict)
+ * POST   /api/devices/:deviceId/archive         editor       -                      200 deviceDetail (hidden from pickers, links still resolve)
+ * POST   /api/devices/:deviceId/restore         editor       -                      200 deviceDetail
+ * GET    /api/devices/:deviceId/usage           reader       -                      200 deviceUsage (only models of projects the caller may read)
  * GET    /api/devices/:deviceId/versions        reader       -                      200 deviceVersionList (newest first)
  * GET    /api/devices/:deviceId/versions/:version  reader    -                      200 deviceVersion
  * POST   /api/devices/:deviceId/evidence        editor       multipart file (+description)  201 deviceDetail (PDF/PNG/JPEG by content, 10 MB: 413)

@@ -13,7 +13,8 @@ const bytea = customType<{ data: Buffer; driverData: Buffer }>({
 /**
  * Records of the site-wide device-data library (shared/api/devices.ts). The identity of a record is its
  * maker and model (case-insensitive, unique); its figures live in numbered versions, and
- * current_version names the latest.
+ * current_version names the latest. An archived record (archived_at set) is hidden from the pickers
+ * and the list but stays readable, so the models that link to it still resolve.
  */
 export const devices = pgTable(
   'devices',
@@ -25,11 +26,14 @@ export const devices = pgTable(
     createdById: uuid('created_by_id')
       .notNull()
       .references(() => users.id, { onDelete: 'restrict' }),
+    archivedAt: timestamp('archived_at', { withTimezone: true, mode: 'date' }),
+    archivedById: uuid('archived_by_id').references(() => users.id, { onDelete: 'restrict' }),
     ...timestamps,
   },
   (table) => [
     uniqueIndex('devices_maker_model_unique').on(sql`lower(${table.maker})`, sql`lower(${table.model})`),
     check('devices_current_version_positive', sql`${table.currentVersion} >= 1`),
+    check('devices_archived_by_with_date', sql`(${table.archivedAt} is null) = (${table.archivedById} is null)`),
   ],
 );
 

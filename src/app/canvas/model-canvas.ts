@@ -48,6 +48,7 @@ import {
   type EditableModel,
   type PaletteKind,
 } from './model-graph';
+import { OutdatedDevicesNotice } from '../devices/outdated-devices-notice';
 import { PinMarker } from '../review/pin-marker';
 import { Palette } from './palette';
 import { PropertiesPanel, type PanelEdit } from './properties/properties-panel';
@@ -63,7 +64,7 @@ const PASTE_OFFSET = { x: 40, y: 40 };
  */
 @Component({
   selector: 'pl-model-canvas',
-  imports: [FFlowModule, Palette, PinMarker, PropertiesPanel, CardSizeWatch, MatIconButton, MatIcon, MatTooltip],
+  imports: [FFlowModule, Palette, PinMarker, PropertiesPanel, CardSizeWatch, OutdatedDevicesNotice, MatIconButton, MatIcon, MatTooltip],
   providers: [CardSizes],
   templateUrl: './model-canvas.html',
   styleUrl: './model-canvas.scss',

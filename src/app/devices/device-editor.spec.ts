@@ -26,6 +26,7 @@ describe('DeviceEditor', () => {
     http.expectOne('/api/devices/access').flush({ canRead: true, canEdit: true });
     http.expectOne(DEVICE_URL).flush(RECORD);
     http.expectOne(`${DEVICE_URL}/versions`).flush([deviceVersionFixture()]);
+    http.expectOne(`${DEVICE_URL}/usage`).flush({ deviceId: RECORD.id, currentVersion: 1, entries: [] });
     await settle(fixture);
     return { fixture, loader: TestbedHarnessEnvironment.loader(fixture), element: fixture.nativeElement as HTMLElement };
   }
@@ -95,7 +96,7 @@ describe('DeviceLibraryPage', () => {
     const fixture = TestBed.createComponent(DeviceLibraryPage);
     await settle(fixture);
     http.expectOne('/api/devices/access').flush({ canRead: true, canEdit: false });
-    http.expectOne('/api/devices').flush([deviceSummaryFixture()]);
+    http.expectOne((request) => request.url === '/api/devices').flush([deviceSummaryFixture()]);
     await settle(fixture);
     const element = fixture.nativeElement as HTMLElement;
     const cells = Array.from(element.querySelectorAll('tbody td')).map((cell) => cell.textContent!.trim());

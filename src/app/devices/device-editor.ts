@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, ErrorHandler, computed, inject, input, signal, effect } from '@angular/core';
 import { MatButton } from '@angular/material/button';
-import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
+import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
@@ -14,8 +14,10 @@ import {
   deviceConflictDetails,
   derivedFractions,
   type DeviceDetail,
+  type DeviceUsageEntry,
   type DeviceVersion,
 } from '../../../shared/api/devices.js';
+import { LINKED_FIELD_LABELS } from './device-link';
 import type { ValidationIssue } from '../../../shared/api/errors.js';
 import { isApiError } from '../errors/api-error';
 import { RATE_UNIT_LABELS, RATE_UNITS, formatTyped, rateToPerHour, readTypedNumber, type RateUnit } from '../units/units';
@@ -31,7 +33,7 @@ const EVIDENCE_TYPES = '.pdf,.png,.jpg,.jpeg,application/pdf,image/png,image/jpe
  */
 @Component({
   selector: 'pl-device-editor',
-  imports: [RouterLink, MatButton, MatFormField, MatLabel, MatError, MatHint, MatInput, MatSelect, MatOption, MatIcon],
+  imports: [RouterLink, MatButton, MatFormField, MatLabel, MatHint, MatInput, MatSelect, MatOption, MatIcon],
   templateUrl: './device-editor.html',
   styleUrl: './device-editor.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -65,7 +67,14 @@ export class DeviceEditor {
   protected readonly problem = signal<string | null>(null);
   protected readonly busy = signal(false);
   protected readonly evidenceDescription = signal('');
-  protected readonly canEdit = computed(() => this.library.access().canEdit);
+  /** The models and events that link to the record (those the user may read); null until loaded. */
+  protected readonly usage = signal<readonly DeviceUsageEntry[] | null>(null);
+  protected readonly confirmingDelete = signal(false);
+  protected readonly archived = computed(() => this.record()?.archivedAt != null);
+  /** May archive, restore and delete records. */
+  protected readonly canManage = computed(() => this.library.access().canEdit);
+  /** May change the figures and evidence: an editor, and the record is not archived. */
+  protected readonly canEdit = computed(() => this.library.access().canEdit && !this.archived());
 
   /** DC and SFF of the figures as typed (IEC 61508-2:2010 Annex C), null while a rate is not a number. */
   protected readonly derived = computed(() => {
@@ -174,15 +183,68 @@ export class DeviceEditor {
     }
   }
 
+  protected async archive(): Promise<void> {
+    await this.change((id) => this.library.archive(id));
+  }
+
+  protected async restore(): Promise<void> {
+    await this.change((id) => this.library.restore(id));
+  }
+
+  protected async remove(): Promise<void> {
+    const current = this.record();
+    if (!current) return;
+    this.confirmingDelete.set(false);
+    this.busy.set(true);
+    try {
+      await this.library.remove(current.id);
+      await this.router.navigate(['/devices']);
+    } catch (error) {
+      this.showRefusal(error);
+    } finally {
+      this.busy.set(false);
+    }
+  }
+
+  /** "Draft v3" or "Rev 2". */
+  protected placeText(entry: DeviceUsageEntry): string {
+    return entry.place === 'draft' ? `Draft v${entry.placeNumber}` : `Rev ${entry.placeNumber}`;
+  }
+
+  protected overridesText(entry: DeviceUsageEntry): string {
+    return entry.overriddenFields.map((field) => LINKED_FIELD_LABELS[field as keyof typeof LINKED_FIELD_LABELS] ?? field).join(', ');
+  }
+
+  private async change(action: (deviceId: string) => Promise<DeviceDetail>): Promise<void> {
+    const current = this.record();
+    if (!current) return;
+    this.busy.set(true);
+    try {
+      this.record.set(await action(current.id));
+      this.problem.set(null);
+    } catch (error) {
+      this.showRefusal(error);
+    } finally {
+      this.busy.set(false);
+    }
+  }
+
+  /** A refusal the user can act on (403, 404, 409) is shown with the server's words; others go to the handler. */
+  private showRefusal(error: unknown): void {
+    if (isApiError(error) && error.status >= 400 && error.status < 500 && error.status !== 401) this.problem.set(error.message);
+    else this.errorHandler.handleError(error);
+  }
+
   protected evidenceUrl(evidenceId: string): string {
     return this.library.evidenceUrl(this.record()?.id ?? '', evidenceId);
   }
 
   private async load(deviceId: string): Promise<void> {
     try {
-      const [record, versions] = await Promise.all([this.library.get(deviceId), this.library.versions(deviceId)]);
+      const [record, versions, usage] = await Promise.all([this.library.get(deviceId), this.library.versions(deviceId), this.library.usage(deviceId)]);
       this.record.set(record);
       this.versions.set(versions);
+      this.usage.set(usage.entries);
       this.form.set(toDeviceForm(record, this.unit()));
     } catch (error) {
       if (isApiError(error, 404)) this.problem.set('There is no such library record, or you may not see it.');

@@ -34,7 +34,7 @@ export function deviceVersionFixture(overrides: Partial<DeviceVersion> = {}): De
 
 export function deviceSummaryFixture(overrides: Partial<DeviceSummary> = {}): DeviceSummary {
   const version = deviceVersionFixture(overrides);
-  return { ...version, id: version.deviceId, evidenceCount: 0, ...overrides };
+  return { ...version, id: version.deviceId, evidenceCount: 0, archivedAt: null, ...overrides };
 }
 
 /** The entered figures of the fixture version (what an import row parses to). */

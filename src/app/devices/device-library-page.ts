@@ -5,7 +5,7 @@ import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { RouterLink } from '@angular/router';
-import { DEVICE_CATEGORIES, type DeviceCategory } from '../../../shared/api/devices.js';
+import { DEVICE_CATEGORIES, type DEVICE_ARCHIVE_FILTERS, type DeviceCategory } from '../../../shared/api/devices.js';
 import { RATE_UNIT_LABELS, RATE_UNITS, formatTyped, rateFromPerHour, type RateUnit } from '../units/units';
 import { CATEGORY_LABELS, SOURCE_KIND_LABELS } from './device-labels';
 import { DeviceLibrary } from './device-library';
@@ -30,6 +30,7 @@ export class DeviceLibraryPage {
   protected readonly search = signal('');
   protected readonly category = signal<DeviceCategory | null>(null);
   protected readonly unit = signal<RateUnit>('fit');
+  protected readonly archived = signal<(typeof DEVICE_ARCHIVE_FILTERS)[number]>('active');
   protected readonly loaded = signal(false);
 
   constructor() {
@@ -47,6 +48,11 @@ export class DeviceLibraryPage {
     void this.refresh();
   }
 
+  protected setArchived(filter: (typeof DEVICE_ARCHIVE_FILTERS)[number]): void {
+    this.archived.set(filter);
+    void this.refresh();
+  }
+
   protected rate(perHour: number): string {
     return formatTyped(rateFromPerHour(perHour, this.unit()));
   }
@@ -57,7 +63,7 @@ export class DeviceLibraryPage {
 
   private async refresh(): Promise<void> {
     try {
-      await this.library.load({ search: this.search(), category: this.category() });
+      await this.library.load({ search: this.search(), category: this.category(), archived: this.archived() });
     } catch (error) {
       this.errorHandler.handleError(error);
     } finally {

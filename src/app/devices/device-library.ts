@@ -5,6 +5,7 @@ import {
   deviceLibraryAccess,
   deviceList,
   deviceSummary,
+  deviceUsage,
   deviceVersion,
   deviceVersionList,
   importPreview,
@@ -14,7 +15,9 @@ import {
   type DeviceDetail,
   type DeviceLibraryAccess,
   type DeviceSummary,
+  type DeviceUsage,
   type DeviceVersion,
+  type DEVICE_ARCHIVE_FILTERS,
   type ImportConfirmBody,
   type ImportPreview,
   type ImportPreviewBody,
@@ -24,6 +27,13 @@ import {
 import { completed, parsed } from '../http/parse-response';
 
 const BASE = '/api/devices';
+
+export interface DeviceFilter {
+  readonly search?: string;
+  readonly category?: DeviceCategory | null;
+  /** Default: active records only. */
+  readonly archived?: (typeof DEVICE_ARCHIVE_FILTERS)[number];
+}
 
 function deviceUrl(deviceId: string): string {
   return `${BASE}/${encodeURIComponent(deviceId)}`;
@@ -48,15 +58,19 @@ export class DeviceLibrary {
   }
 
   /** Loads the list shown by the library page. */
-  async load(filter: { search?: string; category?: DeviceCategory | null } = {}): Promise<void> {
+  async load(filter: DeviceFilter = {}): Promise<void> {
     this.listed.set(await this.search(filter));
   }
 
-  /** Searches without changing the page's list (the picker uses this). */
-  async search(filter: { search?: string; category?: DeviceCategory | null; ids?: readonly string[] }): Promise<DeviceSummary[]> {
+  /**
+   * Searches without changing the page's list (the picker uses this). Archived records are left out
+   * unless asked for, except when ids are given (the records a model links to).
+   */
+  async search(filter: DeviceFilter & { ids?: readonly string[] }): Promise<DeviceSummary[]> {
     let params = new HttpParams();
     if (filter.search?.trim()) params = params.set('search', filter.search.trim());
     if (filter.category) params = params.set('category', filter.category);
+    if (filter.archived) params = params.set('archived', filter.archived);
     if (filter.ids) params = params.set('ids', filter.ids.join(','));
     return parsed(`GET ${BASE}`, this.http.get(BASE, { params }), deviceList);
   }
@@ -73,6 +87,32 @@ export class DeviceLibrary {
   version(deviceId: string, version: number): Promise<DeviceVersion> {
     const url = `${deviceUrl(deviceId)}/versions/${version}`;
     return parsed(`GET ${url}`, this.http.get(url), deviceVersion);
+  }
+
+  /** Which models (drafts, revisions) and events of the projects the user may read link to the record. */
+  usage(deviceId: string): Promise<DeviceUsage> {
+    const url = `${deviceUrl(deviceId)}/usage`;
+    return parsed(`GET ${url}`, this.http.get(url), deviceUsage);
+  }
+
+  async archive(deviceId: string): Promise<DeviceDetail> {
+    const url = `${deviceUrl(deviceId)}/archive`;
+    const saved = await parsed(`POST ${url}`, this.http.post(url, {}), deviceDetail);
+    this.listed.update((list) => list.filter((item) => item.id !== deviceId));
+    return saved;
+  }
+
+  async restore(deviceId: string): Promise<DeviceDetail> {
+    const url = `${deviceUrl(deviceId)}/restore`;
+    const saved = await parsed(`POST ${url}`, this.http.post(url, {}), deviceDetail);
+    this.replace(saved);
+    return saved;
+  }
+
+  /** Deletes a record no model links to (409 with the models that do, otherwise). */
+  async remove(deviceId: string): Promise<void> {
+    await completed(this.http.delete(deviceUrl(deviceId)));
+    this.listed.update((list) => list.filter((item) => item.id !== deviceId));
   }
 
   async create(body: CreateDeviceBody): Promise<DeviceDetail> {

@@ -32,6 +32,9 @@ import { DevicePickerDialog, type DevicePickerDialogData } from './device-picker
             }
           </span>
         </div>
+        @if (current()?.archivedAt) {
+          <p class="archived" role="status">The library record is archived: it still resolves here, but the pickers no longer offer it.</p>
+        }
         @if (newer(); as current) {
           <div class="newer" role="status">
             Library version {{ current.version }} is available ({{ current.changeNote || 'no note' }}).
@@ -101,6 +104,10 @@ import { DevicePickerDialog, type DevicePickerDialogData } from './device-picker
       min-width: 9em;
     }
     .mark {
+      color: var(--mat-sys-on-surface-variant);
+    }
+    .archived {
+      margin: 4px 0;
       color: var(--mat-sys-on-surface-variant);
     }
     .state-overridden .mark {
