@@ -1,14 +1,7 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { launchChromium, screenshot, watchForPageErrors } from './browser.js';
-import { box, dragConnect, dropFromPalette, openNewFaultTree } from './canvas-steps.js';
-
-interface Box {
-  readonly x: number;
-  readonly y: number;
-  readonly width: number;
-  readonly height: number;
-}
+import { box, dragConnect, dropFromPalette, openNewFaultTree, type Box } from './canvas-steps.js';
 
 function encloses(outer: Box, inner: Box): boolean {
   return outer.x <= inner.x && outer.y <= inner.y && outer.x + outer.width >= inner.x + inner.width && outer.y + outer.height >= inner.y + inner.height;
@@ -53,8 +46,16 @@ describe('common-cause bands in a browser', () => {
 
   async function wrapAndFollow(): Promise<void> {
     await openNewFaultTree(page, inject('baseUrl'));
-    // Three transmitters in a row and their group below the first, left of the starter event E1 (in the
-    // middle of the view), which stays outside the group.
+    // The starter event E1 goes to the right first, wherever the view opened it.
+    const starter = await box(page.locator('[data-node="event:E1"] .card-title'));
+    const flow = await box(page.locator('f-flow'));
+    await page.mouse.move(starter.x + 10, starter.y + 5);
+    await page.mouse.down();
+    await page.mouse.move(starter.x + 40, starter.y + 40, { steps: 5 });
+    await page.mouse.move(flow.x + 860, flow.y + 480, { steps: 10 });
+    await page.mouse.up();
+    // Three transmitters in a row and their group below the first, left of the starter event E1, which
+    // stays outside the group.
     for (const x of [20, 260, 500]) await dropFromPalette(page, 'rateEvent', x, 30);
     await dropFromPalette(page, 'ccf', 20, 470);
     await page.locator('[data-node="ccf:CCF1"]').waitFor();

@@ -1,59 +1,8 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { launchChromium, screenshot, watchForPageErrors } from './browser.js';
-import { openNewFaultTree } from './canvas-steps.js';
+import { fieldBoxes, openNewFaultTree, overlap } from './canvas-steps.js';
 
-
-interface Box {
-  readonly x: number;
-  readonly y: number;
-  readonly width: number;
-  readonly height: number;
-}
-
-/** Each form field of the panel that shows a unit after its input: its label's and its unit's boxes. */
-interface FieldBoxes {
-  readonly label: string;
-  readonly labelBox: Box;
-  readonly unit: string;
-  readonly unitBox: Box;
-  readonly floating: boolean;
-  /** Whether the label is cut short (an ellipsis in place of its end). */
-  readonly cut: boolean;
-}
-
-function overlap(a: Box, b: Box): boolean {
-  return a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height;
-}
-
-/** The boxes of every label and unit suffix in the properties panel, as the browser laid them out. */
-async function fieldBoxes(page: Page): Promise<FieldBoxes[]> {
-  return page.locator('pl-properties-panel mat-form-field').evaluateAll((fields) =>
-    fields.flatMap((field) => {
-      const label = field.querySelector('.mat-mdc-floating-label');
-      const unit = field.querySelector('.mat-mdc-form-field-text-suffix');
-      if (!label || !unit) return [];
-      // The label text itself (the <label> box spans the whole field width when it rests).
-      const range = document.createRange();
-      range.selectNodeContents(label);
-      const labelRect = range.getBoundingClientRect();
-      const unitRange = document.createRange();
-      unitRange.selectNodeContents(unit);
-      const unitRect = unitRange.getBoundingClientRect();
-      const plain = (rect: DOMRect) => ({ x: rect.x, y: rect.y, width: rect.width, height: rect.height });
-      return [
-        {
-          label: (label.textContent ?? '').trim(),
-          labelBox: plain(labelRect),
-          unit: (unit.textContent ?? '').trim(),
-          unitBox: plain(unitRect),
-          floating: label.classList.contains('mdc-floating-label--float-above'),
-          cut: label.scrollWidth > label.clientWidth + 1,
-        },
-      ];
-    }),
-  );
-}
 
 describe('the properties panel layout in a browser', () => {
   let browser: Browser;

@@ -235,9 +235,14 @@ function chainOf(model: MarkovDraft, part: string | undefined): DraftStateChain 
   return part === undefined ? model : model.parts?.find((candidate) => candidate.id === part);
 }
 
+/** Puts a chain's states, transitions and tests (exactly these: no tests means none) into the model. */
 function withChain(model: MarkovDraft, part: string | undefined, chain: DraftStateChain): MarkovDraft {
-  if (part === undefined) return { ...model, states: chain.states, transitions: chain.transitions, tests: chain.tests };
-  return { ...model, parts: (model.parts ?? []).map((candidate) => (candidate.id === part ? { ...candidate, ...chain } : candidate)) };
+  const apply = <T extends DraftStateChain>(target: T): T => {
+    const { tests: _replaced, ...others } = target;
+    return { ...others, states: chain.states, transitions: chain.transitions, ...(chain.tests !== undefined ? { tests: chain.tests } : {}) } as T;
+  };
+  if (part === undefined) return apply(model);
+  return { ...model, parts: (model.parts ?? []).map((candidate) => (candidate.id === part ? apply(candidate) : candidate)) };
 }
 
 /** Whether `target` is `source` or lies below it (so making `source` an input of `target` would loop). */
@@ -445,6 +450,13 @@ export function updateTransition(model: MarkovDraft, part: string | undefined, i
   const chain = chainOf(model, part);
   if (!chain) return model;
   return withChain(model, part, { ...chain, transitions: chain.transitions.map((item, at) => (at === index ? transition : item)) });
+}
+
+/** Replaces the test schedules of the main chain (`part` undefined) or of one part; none leaves the key out. */
+export function updateTests(model: MarkovDraft, part: string | undefined, tests: readonly MarkovTest[]): MarkovDraft {
+  const chain = chainOf(model, part);
+  if (!chain) return model;
+  return withChain(model, part, { states: chain.states, transitions: chain.transitions, ...(tests.length > 0 ? { tests } : {}) });
 }
 
 /** Makes a gate or event the top of the tree. */

@@ -22,6 +22,7 @@ import { EventProperties } from './event-properties';
 import { GateProperties } from './gate-properties';
 import { ModelProperties, type ModelHeader } from './model-properties';
 import { StateProperties } from './state-properties';
+import { TestSchedules } from './test-schedules';
 import { TransitionProperties } from './transition-properties';
 
 /** An edit made in the panel, and the canvas id the selection moves to when an item's id changed. */
@@ -51,7 +52,7 @@ type Selected =
 /** The properties of the selected item (or of the model when nothing is selected), with its issues. */
 @Component({
   selector: 'pl-properties-panel',
-  imports: [GateProperties, EventProperties, CcfProperties, StateProperties, TransitionProperties, ModelProperties],
+  imports: [GateProperties, EventProperties, CcfProperties, StateProperties, TransitionProperties, ModelProperties, TestSchedules],
   template: `
     <h2>{{ heading() }}</h2>
     @if (issues().length > 0) {
@@ -92,6 +93,9 @@ type Selected =
       }
       @default {
         <pl-model-properties [model]="model()" [readOnly]="readOnly()" (changed)="editHeader($event)" />
+        @if (markovModel(); as stateModel) {
+          <pl-test-schedules [model]="stateModel" [readOnly]="readOnly()" (changed)="emit($event)" />
+        }
       }
     }
     @if (links().length > 0) {
@@ -219,6 +223,12 @@ export class PropertiesPanel {
   protected readonly transitionItem = computed(() => {
     const selected = this.selected();
     return selected.kind === 'transition' ? selected.item : null;
+  });
+
+  /** The model when it is a state model, for its test schedules. */
+  protected readonly markovModel = computed(() => {
+    const model = this.model();
+    return model.kind === 'markov' ? model : null;
   });
 
   protected readonly heading = computed(() => {
@@ -352,7 +362,7 @@ export class PropertiesPanel {
     this.edited.emit({ model: this.model(), selectConnection: connection });
   }
 
-  private emit(model: EditableModel, renamed?: NodeRef): void {
+  protected emit(model: EditableModel, renamed?: NodeRef): void {
     this.edited.emit(renamed ? { model, select: nodeId(renamed) } : { model });
   }
 }
