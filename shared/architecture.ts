@@ -26,6 +26,16 @@ export const architectureChannel = z.strictObject({
       intervalHours: positiveHours,
       firstHours: positiveHours.optional(),
       coverage: fraction.optional(),
+      /** Time the proof test takes (hours); the channel is out of service (failed) while it is tested. */
+      durationHours: z.number().finite().nonnegative().optional(),
+    })
+    .optional(),
+  /** Partial test (e.g. partial stroke): reveals the share `coverage` of DU failures at its own interval. */
+  partialTest: z
+    .strictObject({
+      intervalHours: positiveHours,
+      firstHours: positiveHours.optional(),
+      coverage: fraction,
     })
     .optional(),
 });
@@ -46,6 +56,14 @@ export const architectureGroup = z.strictObject({
   beta: fraction.optional(),
   /** Beta factor of DD failures; default beta, as in the fault-tree engine. */
   betaD: fraction.optional(),
+  /**
+   * "beta" (default): the shared rate is beta lambda; "pds": beta C_MooN lambda, the PDS method's
+   * modification for the voting (SINTEF PDS method handbook, 2013), C_MooN from its table unless
+   * `pdsFactor` gives it.
+   */
+  commonCauseModel: z.enum(['beta', 'pds']).optional(),
+  /** C_MooN given explicitly (PDS method only), e.g. for a voting the table has no cell for. */
+  pdsFactor: z.number().finite().nonnegative().optional(),
 });
 export type ArchitectureGroup = z.infer<typeof architectureGroup>;
 
@@ -92,6 +110,9 @@ export const architecture = architectureShape.superRefine((value, context) => {
         context.addIssue({ code: 'custom', path: [...path, 'voting'], message: `group "${group.id}": the diagnosed voting "D" is only defined for 1oo2D` });
       }
     }
+    if (group.pdsFactor !== undefined && group.commonCauseModel !== 'pds') {
+      context.addIssue({ code: 'custom', path: [...path, 'pdsFactor'], message: `group "${group.id}": pdsFactor (C_MooN) is only used with commonCauseModel "pds"` });
+    }
     const channelIds = new Set<string>();
     channels.forEach((channel, channelIndex) => {
       const channelPath = Array.isArray(group.channels) ? [...path, 'channels', channelIndex] : [...path, 'channels', 'identical'];
@@ -112,6 +133,19 @@ export const architecture = architectureShape.superRefine((value, context) => {
       }
       if (test?.firstHours !== undefined && test.firstHours > value.mission.hours) {
         context.addIssue({ code: 'custom', path: [...channelPath, 'proofTest', 'firstHours'], message: `group "${group.id}": the first proof test at ${test.firstHours} h is after the mission end` });
+      }
+      if (test?.durationHours !== undefined && test.durationHours >= test.intervalHours) {
+        context.addIssue({ code: 'custom', path: [...channelPath, 'proofTest', 'durationHours'], message: `group "${group.id}": the proof test lasts ${test.durationHours} h, as long as its interval or longer` });
+      }
+      const partial = channel.partialTest;
+      if (partial && partial.intervalHours > value.mission.hours) {
+        context.addIssue({ code: 'custom', path: [...channelPath, 'partialTest', 'intervalHours'], message: `group "${group.id}": the partial test interval ${partial.intervalHours} h is longer than the mission (${value.mission.hours} h)` });
+      }
+      if (partial?.firstHours !== undefined && partial.firstHours > value.mission.hours) {
+        context.addIssue({ code: 'custom', path: [...channelPath, 'partialTest', 'firstHours'], message: `group "${group.id}": the first partial test at ${partial.firstHours} h is after the mission end` });
+      }
+      if (partial && test && partial.coverage > (test.coverage ?? 1)) {
+        context.addIssue({ code: 'custom', path: [...channelPath, 'partialTest', 'coverage'], message: `group "${group.id}": the partial test coverage ${partial.coverage} is above the proof test coverage ${test.coverage ?? 1} (the proof test reveals everything the partial test reveals)` });
       }
     });
   });

@@ -17,6 +17,7 @@ import {
   type RateEvent,
 } from '../../shared/model-file.js';
 import { ModelError } from '../common/model-error.js';
+import { pdsFactor } from '../formulas/pds.js';
 
 /** Largest state model the generator writes (states of the main chain or of one part). */
 export const MAX_GENERATED_STATES = 200_000;
@@ -28,16 +29,30 @@ export interface GeneratedModels {
   readonly warnings: string[];
 }
 
-/** Channel conditions in the state model. */
+/**
+ * Conditions of a channel (or of a group's shared event) in the state model. A condition plus UNDER_TEST
+ * is the same condition while the channel is out of service for its proof test.
+ */
 const OK = 0;
-/** Dangerous undetected failure, found by the proof test. */
-const HIDDEN = 1;
-/** Dangerous undetected failure the proof test does not cover: hidden to the mission end. */
-const NEVER_FOUND = 2;
+/** Dangerous undetected failure that the partial test (and the proof test) reveals. */
+const HIDDEN_PARTIAL = 1;
+/** Dangerous undetected failure that only the proof test reveals. */
+const HIDDEN = 2;
+/** Dangerous undetected failure no test reveals: hidden to the mission end. */
+const NEVER_FOUND = 3;
 /** Revealed failure under repair (DD, a DU found by a test, or a 1oo2D channel taken out by diagnostics). */
-const REPAIR = 3;
-const CONDITION_LETTERS = ['O', 'U', 'N', 'R'];
-const CONDITION_WORDS = ['ok', 'DU hidden', 'DU not covered', 'under repair'];
+const REPAIR = 4;
+const UNDER_TEST = 5;
+const CONDITION_LETTERS = ['O', 'P', 'U', 'N', 'R', 'o', 'p', 'u', 'n', 'r'];
+const CONDITION_WORDS = ['ok', 'DU hidden (partial test reveals it)', 'DU hidden', 'DU not covered', 'under repair'];
+
+/** How a channel's (or shared event's) DU failures split by the test that reveals them. */
+interface FailureSplit {
+  /** Rates per hour into HIDDEN_PARTIAL, HIDDEN and NEVER_FOUND. */
+  readonly toPartial: number;
+  readonly toHidden: number;
+  readonly toNever: number;
+}
 
 interface ChannelPlan {
   readonly id: string;
@@ -45,9 +60,14 @@ interface ChannelPlan {
   readonly lambdaDD: number;
   readonly lambdaSD: number;
   readonly mttrHours: number;
-  readonly coverage: number;
+  readonly proofCoverage: number;
   readonly intervalHours?: number;
   readonly firstHours?: number;
+  /** Hours the channel is out of service at each proof test (0: none). */
+  readonly durationHours: number;
+  readonly partialCoverage: number;
+  readonly partialIntervalHours?: number;
+  readonly partialFirstHours?: number;
 }
 
 interface GroupPlan {
@@ -60,37 +80,50 @@ interface GroupPlan {
   /** Channels are identical and tested together: states count them instead of naming them. */
   readonly exchangeable: boolean;
   readonly shared?: SharedPlan;
+  /** C_MooN of the PDS method (1 for the beta model), and whether the fault tree must state it. */
+  readonly factor: number;
+  readonly writeFactor: boolean;
 }
 
 /** The group's shared (common-cause) event, split as the fault-tree engine splits it. */
 interface SharedPlan {
   readonly lambdaDU: number;
   readonly lambdaDD: number;
-  readonly coverage: number;
+  readonly partialShare: number;
+  readonly proofShare: number;
   readonly mttrHours: number;
 }
-
-/** A state of one group: channel conditions, then the shared DU condition and the shared DD condition. */
-type GroupState = number[];
 
 /**
  * Writes a state model and the equivalent fault tree for an architecture of voting groups in series.
  *
- * State model: per channel the conditions ok, DU hidden (found by the proof test), DU not covered
- * (hidden to the mission end) and under repair; per group with common cause a shared DU event and a
- * shared DD event as their own components, failing every member while they last, as the fault-tree
- * engine's beta-factor model does (IEC 61508-6:2010 Annex D; geometric mean of the members' rates,
- * lowest coverage, longest MTTR). A group is down when at least k = N - M + 1 of its channels are failed
- * or a shared event is failed. A proof test moves the tested channels' hidden failures and the shared
- * hidden failure to repair (or to ok when MTTR is 0). Identical channels tested together are counted
- * rather than named (exact lumping of exchangeable channels). Without a shared crew each group is an
- * independent part; with one, the groups form one chain and one crew repairs one item at a time (the
- * first in group and channel order, shared events last).
+ * State model: per channel the conditions ok, DU hidden until a partial or proof test, DU hidden until a
+ * proof test, DU not covered (hidden to the mission end) and under repair, each also "under test" while
+ * the channel is out of service for a proof test that lasts `durationHours` (entered at the test, left
+ * at its end; failures and repairs go on meanwhile, as in the fault-tree engine). A group is down when
+ * at least k = N - M + 1 of its channels are failed or under test, or its common cause has failed it.
+ * DU failures split as the fault-tree engine splits them (docs/model-format.md): the share
+ * `partialTest.coverage` is revealed by partial and proof tests, up to `proofTest.coverage` by proof
+ * tests only, the rest never. A test moves the hidden failures it reveals to repair (or to ok when MTTR
+ * is 0). Identical channels tested together are counted rather than named (exact lumping of
+ * exchangeable channels).
+ *
+ * Common cause, beta-factor model (IEC 61508-6:2010 Annex D) or the PDS method (beta times C_MooN of the
+ * voting, SINTEF PDS method handbook 2013): the members keep (1 - beta) of their rates, and the shared
+ * rate beta C lambda (geometric mean of the members' rates, lowest coverages, longest MTTR) fails them
+ * all. Without a shared crew it is written as the fault tree writes it, a shared DU event and a shared
+ * DD event of their own that fail the group while they last and are revealed by any member's test; each
+ * group is then an independent part. With a shared repair crew the groups form one chain, one crew
+ * repairs one channel at a time (the first in group and channel order), and a common-cause failure is
+ * written as a jump of every working channel of the group into the failed condition (the usual state
+ * model of common cause, Rausand & Hoyland, System Reliability Theory, 2nd ed., sec. 10.4): a crew
+ * repairs channels, not causes, so each channel the cause failed waits for it.
  *
  * Detected failures (DD, and the safe detected faults that take a 1oo2D channel out) are marked
  * `detected`, so PFH counts undetected failures only, as the fault-tree engine does. One modelling
- * difference remains, second order in the rates: a channel under repair does not fail again until
- * repaired, while the fault tree treats its DU and DD modes as independent.
+ * difference remains, second order in the rates: a channel is in one condition at a time (failed
+ * channels do not fail again until renewed), while the fault tree treats its DD, partial-test, proof-test
+ * and uncovered DU modes as independent failures of one event.
  *
  * @throws ModelError naming the field when the architecture is invalid or the chain is too large.
  */
@@ -101,48 +134,73 @@ export function generateModels(input: Architecture): GeneratedModels {
   }
   const spec = parsed.data;
   const warnings: string[] = [];
-  const groups = spec.groups.map((group) => planGroup(group, spec, warnings));
+  const groups = spec.groups.map((group, index) => planGroup(group, index, spec, warnings));
   const faultTree = writeFaultTree(spec, groups);
   const markov = writeMarkov(spec, groups);
   if (spec.sharedRepairCrew) {
     warnings.push('the fault tree cannot express a shared repair crew: it assumes every revealed failure has its own repair');
+    if (groups.some((group) => group.shared)) {
+      warnings.push('with a shared repair crew the state model writes a common-cause failure as every working channel of the group failing at once, each then repaired by the crew');
+    }
   }
-  for (const model of [markov, faultTree]) {
-    const check = modelFile.safeParse(model);
-    if (!check.success) throw new Error(`generator wrote an invalid ${model.kind} model: ${check.error.issues[0]?.message}`);
-  }
+  // The fault tree is checked here; the state model, which can hold a million entries, is checked by the
+  // tests (a whole-file check of it would take as long as writing it).
+  const check = modelFile.safeParse(faultTree);
+  if (!check.success) throw new Error(`generator wrote an invalid fault tree: ${check.error.issues[0]?.message}`);
   return { markov, faultTree, warnings };
 }
 
-function planGroup(group: Architecture['groups'][number], spec: Architecture, warnings: string[]): GroupPlan {
+function planGroup(group: Architecture['groups'][number], groupIndex: number, spec: Architecture, warnings: string[]): GroupPlan {
   const voting = parseVoting(group.voting)!;
   const channels = groupChannels(group);
   const count = channels.length;
   const beta = group.beta ?? 0;
   const betaD = group.betaD ?? beta;
+  const stagger = (first: number | undefined, index: number) => (first !== undefined && spec.staggeredTests && count > 1 ? (first * (index + 1)) / count : first);
   const plans: ChannelPlan[] = channels.map((channel, index) => {
-    const interval = channel.proofTest?.intervalHours;
-    const first = channel.proofTest ? (channel.proofTest.firstHours ?? channel.proofTest.intervalHours) : undefined;
+    const proof = channel.proofTest;
+    const partial = channel.partialTest;
     return {
       id: `${group.id}-${channel.id ?? index + 1}`,
       lambdaDU: channel.lambdaDU,
       lambdaDD: channel.lambdaDD ?? 0,
       lambdaSD: voting.diagnosed ? (channel.lambdaSD ?? 0) : 0,
       mttrHours: channel.mttrHours,
-      coverage: channel.proofTest ? (channel.proofTest.coverage ?? 1) : 0,
-      intervalHours: interval,
-      firstHours: first !== undefined && spec.staggeredTests && count > 1 ? (first * (index + 1)) / count : first,
+      proofCoverage: proof ? (proof.coverage ?? 1) : 0,
+      intervalHours: proof?.intervalHours,
+      firstHours: stagger(proof ? (proof.firstHours ?? proof.intervalHours) : undefined, index),
+      durationHours: proof?.durationHours ?? 0,
+      partialCoverage: partial ? partial.coverage : 0,
+      partialIntervalHours: partial?.intervalHours,
+      partialFirstHours: stagger(partial ? (partial.firstHours ?? partial.intervalHours) : undefined, index),
     };
   });
   const identical = channels.every((channel) => sameChannel(channel, channels[0]));
   const exchangeable = identical && !(spec.staggeredTests && count > 1);
+  const pds = group.commonCauseModel === 'pds';
+  let factor = 1;
+  let writeFactor = false;
+  if (pds && count > 1 && (beta > 0 || betaD > 0)) {
+    const looked = pdsFactor(voting.m, voting.n);
+    if (group.pdsFactor === undefined && looked === undefined) {
+      throw new ModelError([{ path: ['groups', groupIndex, 'pdsFactor'], message: `group "${group.id}": the PDS table has no C_MooN for ${voting.m}oo${voting.n}; give pdsFactor` }]);
+    }
+    factor = group.pdsFactor ?? looked!;
+    // The fault-tree engine looks C_MooN up from the gate whose inputs are exactly the members; a 1oo2D
+    // gate votes over "failed or taken out" gates, so there the factor is written out.
+    writeFactor = group.pdsFactor !== undefined || plans.some((plan) => plan.lambdaSD > 0);
+  }
   let shared: SharedPlan | undefined;
   if (count > 1 && (beta > 0 || betaD > 0)) {
-    const tested = plans.filter((plan) => plan.intervalHours !== undefined);
+    const tested = plans.filter((plan) => hasTimes(plan.intervalHours, plan.firstHours, spec.mission.hours));
+    const partialTested = plans.filter((plan) => hasTimes(plan.partialIntervalHours, plan.partialFirstHours, spec.mission.hours));
+    const partialShare = partialTested.length > 0 ? Math.min(...partialTested.map((plan) => plan.partialCoverage)) : 0;
+    const proofShare = tested.length > 0 ? Math.max(Math.min(...tested.map((plan) => plan.proofCoverage)), partialShare) : partialShare;
     shared = {
-      lambdaDU: beta * geometricMean(plans.map((plan) => plan.lambdaDU)),
-      lambdaDD: betaD * geometricMean(plans.map((plan) => plan.lambdaDD)),
-      coverage: tested.length === 0 ? 0 : Math.min(...tested.map((plan) => plan.coverage)),
+      lambdaDU: beta * factor * geometricMean(plans.map((plan) => plan.lambdaDU)),
+      lambdaDD: betaD * factor * geometricMean(plans.map((plan) => plan.lambdaDD)),
+      partialShare,
+      proofShare,
       mttrHours: Math.max(...plans.map((plan) => plan.mttrHours)),
     };
     if (!identical) warnings.push(`group "${group.id}": the channels differ; the shared event uses the geometric mean of their rates`);
@@ -156,7 +214,14 @@ function planGroup(group: Architecture['groups'][number], spec: Architecture, wa
     channels: plans.map((plan) => ({ ...plan, lambdaDU: plan.lambdaDU * (shared ? 1 - beta : 1), lambdaDD: plan.lambdaDD * (shared ? 1 - betaD : 1) })),
     exchangeable,
     shared,
+    factor,
+    writeFactor,
   };
+}
+
+/** Whether a test plan has a test strictly before the mission end (as the engines count tests). */
+function hasTimes(intervalHours: number | undefined, firstHours: number | undefined, missionHours: number): boolean {
+  return intervalHours !== undefined && firstHours !== undefined && firstHours < missionHours;
 }
 
 function sameChannel(a: ArchitectureChannel, b: ArchitectureChannel): boolean {
@@ -167,13 +232,27 @@ function sameChannel(a: ArchitectureChannel, b: ArchitectureChannel): boolean {
     a.mttrHours === b.mttrHours &&
     a.proofTest?.intervalHours === b.proofTest?.intervalHours &&
     (a.proofTest?.firstHours ?? a.proofTest?.intervalHours) === (b.proofTest?.firstHours ?? b.proofTest?.intervalHours) &&
-    (a.proofTest?.coverage ?? 1) === (b.proofTest?.coverage ?? 1)
+    (a.proofTest?.coverage ?? 1) === (b.proofTest?.coverage ?? 1) &&
+    (a.proofTest?.durationHours ?? 0) === (b.proofTest?.durationHours ?? 0) &&
+    a.partialTest?.intervalHours === b.partialTest?.intervalHours &&
+    (a.partialTest?.firstHours ?? a.partialTest?.intervalHours) === (b.partialTest?.firstHours ?? b.partialTest?.intervalHours) &&
+    a.partialTest?.coverage === b.partialTest?.coverage
   );
 }
 
 function geometricMean(values: number[]): number {
   if (values.some((value) => value === 0)) return 0;
   return Math.exp(values.reduce((sum, value) => sum + Math.log(value), 0) / values.length);
+}
+
+function channelSplit(plan: ChannelPlan, missionHours: number): FailureSplit {
+  const partialShare = hasTimes(plan.partialIntervalHours, plan.partialFirstHours, missionHours) ? plan.partialCoverage : 0;
+  const proofShare = hasTimes(plan.intervalHours, plan.firstHours, missionHours) ? Math.max(plan.proofCoverage, partialShare) : partialShare;
+  return split(plan.lambdaDU, partialShare, proofShare);
+}
+
+function split(lambdaDU: number, partialShare: number, proofShare: number): FailureSplit {
+  return { toPartial: lambdaDU * partialShare, toHidden: lambdaDU * (proofShare - partialShare), toNever: lambdaDU * (1 - proofShare) };
 }
 
 // ---- fault tree
@@ -192,7 +271,15 @@ function writeFaultTree(spec: Architecture, groups: readonly GroupPlan[]): Fault
       if ((channel.lambdaDD ?? 0) > 0) event.lambdaDD = channel.lambdaDD;
       event.mttrHours = channel.mttrHours;
       if (plan.intervalHours !== undefined) {
-        event.proofTest = { intervalHours: plan.intervalHours, firstHours: plan.firstHours, coverage: plan.coverage };
+        event.proofTest = {
+          intervalHours: plan.intervalHours,
+          firstHours: plan.firstHours,
+          coverage: plan.proofCoverage,
+          ...(plan.durationHours > 0 ? { durationHours: plan.durationHours } : {}),
+        };
+      }
+      if (plan.partialIntervalHours !== undefined) {
+        event.partialTest = { intervalHours: plan.partialIntervalHours, firstHours: plan.partialFirstHours, coverage: plan.partialCoverage };
       }
       events.push(event);
       if (plan.lambdaSD > 0) {
@@ -205,7 +292,14 @@ function writeFaultTree(spec: Architecture, groups: readonly GroupPlan[]): Fault
     });
     gates.push({ id: group.id, label: `${group.label} (${group.voting})`, type: 'atLeast', k: group.k, inputs });
     if (group.shared) {
-      ccf.push({ id: `${group.id}-CCF`, members: group.channels.map((plan) => plan.id), beta: source.beta ?? 0, betaD: source.betaD ?? source.beta ?? 0, model: 'beta' });
+      ccf.push({
+        id: `${group.id}-CCF`,
+        members: group.channels.map((plan) => plan.id),
+        beta: source.beta ?? 0,
+        betaD: source.betaD ?? source.beta ?? 0,
+        model: source.commonCauseModel ?? 'beta',
+        ...(group.writeFactor ? { factor: group.factor } : {}),
+      });
     }
   });
   let top = groups[0].id;
@@ -231,7 +325,9 @@ function writeFaultTree(spec: Architecture, groups: readonly GroupPlan[]): Fault
 
 // ---- state model
 
-interface Schedule {
+/** Tests at one interval and first time: proof tests, partial tests, or the ends of timed proof tests. */
+interface TestSchedule {
+  readonly kind: 'proof' | 'partial' | 'end';
   readonly intervalHours: number;
   readonly firstHours: number;
   /** [group, channel] tested at these times. */
@@ -247,11 +343,9 @@ function writeMarkov(spec: Architecture, groups: readonly GroupPlan[]): MarkovMo
     kind: 'markov' as const,
     mission: spec.mission,
   };
-  if (spec.sharedRepairCrew) {
-    const chain = buildChain(groups, true);
-    return { ...header, ...chain };
-  }
-  const chains = groups.map((group) => buildChain([group], false));
+  const missionHours = spec.mission.hours;
+  if (spec.sharedRepairCrew) return { ...header, ...buildChain(groups, true, missionHours) };
+  const chains = groups.map((group) => buildChain([group], false, missionHours));
   const [first, ...rest] = chains;
   const parts: MarkovPart[] = rest.map((chain, index) => ({ id: groups[index + 1].id, label: groups[index + 1].label, ...chain }));
   return { ...header, ...first, ...(parts.length > 0 ? { parts } : {}) };
@@ -263,17 +357,52 @@ interface ChainText {
   tests?: MarkovTest[];
 }
 
-function buildChain(groups: readonly GroupPlan[], sharedCrew: boolean): ChainText {
-  const schedules = testSchedules(groups);
-  const initial = groups.map((group) => [...group.channels.map(() => OK), OK, OK]);
-  const keyOf = (state: GroupState[]) => state.map((group) => group.join('')).join('|');
-  const index = new Map<string, number>();
-  const states: GroupState[][] = [];
-  const transitions: RawTransition[] = [];
-  const testMoves: { from: number; to: number }[][] = schedules.map(() => []);
-  const visit = (state: GroupState[]): number => {
-    const canonical = state.map((group, position) => canonicalGroup(groups[position], group));
-    const key = keyOf(canonical);
+/**
+ * Where each group's conditions sit in a state's slots: its channels, then (shared-event form) its shared
+ * DU and shared DD events.
+ */
+interface SlotLayout {
+  readonly offset: number;
+  readonly channels: number;
+  readonly sharedSlots: boolean;
+  readonly splits: readonly FailureSplit[];
+  readonly sharedSplit?: FailureSplit;
+}
+
+/**
+ * Explores the reachable states from "all ok" breadth first. A state is a byte per slot; exchangeable
+ * channels are kept sorted within their group, so a count of conditions is one state. Transitions from a
+ * state are merged by target before they are stored (parallel rates add up).
+ */
+function buildChain(groups: readonly GroupPlan[], sharedCrew: boolean, missionHours: number): ChainText {
+  const layouts: SlotLayout[] = [];
+  let slotCount = 0;
+  for (const group of groups) {
+    const sharedSlots = !sharedCrew && group.shared !== undefined;
+    layouts.push({
+      offset: slotCount,
+      channels: group.channels.length,
+      sharedSlots,
+      splits: group.channels.map((plan) => channelSplit(plan, missionHours)),
+      sharedSplit: group.shared ? split(group.shared.lambdaDU, group.shared.partialShare, group.shared.proofShare) : undefined,
+    });
+    slotCount += group.channels.length + (sharedSlots ? 2 : 0);
+  }
+  const schedules = testSchedules(groups, missionHours);
+  const states: Uint8Array[] = [];
+  const index = new Map<number | string, number>();
+  // Up to 13 slots of 4 bits fit a double exactly: a number key hashes several times faster than a string.
+  const numericKeys = slotCount <= 13;
+  /** The state index of a target written into `scratch` (added when new). */
+  const visit = (scratch: Uint8Array): number => {
+    canonicalize(groups, layouts, scratch);
+    let key: number | string;
+    if (numericKeys) {
+      key = 0;
+      for (let slot = 0; slot < scratch.length; slot += 1) key = key * 16 + scratch[slot];
+    } else {
+      key = String.fromCharCode.apply(null, scratch as unknown as number[]);
+    }
     let found = index.get(key);
     if (found === undefined) {
       found = states.length;
@@ -281,40 +410,72 @@ function buildChain(groups: readonly GroupPlan[], sharedCrew: boolean): ChainTex
         throw new ModelError([{ path: ['groups'], message: `the state model would have more than ${MAX_GENERATED_STATES.toLocaleString('en-US')} states; use fewer or identical channels, or no shared repair crew` }]);
       }
       index.set(key, found);
-      states.push(canonical);
+      states.push(Uint8Array.from(scratch));
     }
     return found;
   };
-  visit(initial);
-  for (let position = 0; position < states.length; position += 1) {
+  const scratch = new Uint8Array(slotCount);
+  visit(scratch);
+
+  const from: number[] = [];
+  const to: number[] = [];
+  const rates: number[] = [];
+  const detectedFlags: boolean[] = [];
+  const moves: { from: number; to: number }[][] = schedules.map(() => []);
+  const targets: number[] = [];
+  const targetRates: number[] = [];
+  const targetDetected: boolean[] = [];
+  let position = 0;
+  const addTransition = (rate: number, detected: boolean) => {
+    if (!(rate > 0)) return;
+    const next = visit(scratch);
+    if (next === position) return;
+    for (let slot = 0; slot < targets.length; slot += 1) {
+      if (targets[slot] === next && targetDetected[slot] === detected) {
+        targetRates[slot] += rate;
+        return;
+      }
+    }
+    targets.push(next);
+    targetRates.push(rate);
+    targetDetected.push(detected);
+  };
+  for (; position < states.length; position += 1) {
     const state = states[position];
-    for (const { target, rate, detected } of stateTransitions(groups, state, sharedCrew)) {
-      if (rate > 0) transitions.push({ from: position, to: visit(target), rate, detected: detected ?? false });
+    targets.length = 0;
+    targetRates.length = 0;
+    targetDetected.length = 0;
+    forEachTransition(groups, layouts, state, sharedCrew, scratch, addTransition);
+    for (let slot = 0; slot < targets.length; slot += 1) {
+      from.push(position);
+      to.push(targets[slot]);
+      rates.push(targetRates[slot]);
+      detectedFlags.push(targetDetected[slot]);
     }
     schedules.forEach((schedule, scheduleIndex) => {
-      const target = applyScheduleTest(groups, state, schedule);
-      const to = visit(target);
-      if (to !== position) testMoves[scheduleIndex].push({ from: position, to });
+      if (!applyScheduleTest(groups, layouts, state, schedule, scratch)) return;
+      const next = visit(scratch);
+      if (next !== position) moves[scheduleIndex].push({ from: position, to: next });
     });
   }
-  const merged = mergeTransitions(transitions);
-  const ids = stateIds(groups, states);
+
+  const ids = stateIds(groups, layouts, states);
   return {
     states: states.map((state, position) => ({
       id: ids[position],
-      label: stateLabel(groups, state),
+      label: stateLabel(groups, layouts, state),
       ...(position === 0 ? { initial: 1 } : {}),
-      ...(isDown(groups, state) ? { down: true } : {}),
+      ...(isDown(groups, layouts, state) ? { down: true } : {}),
     })),
-    transitions: merged.map((transition) => ({ from: ids[transition.from], to: ids[transition.to], rate: transition.rate, ...(transition.detected ? { detected: true } : {}) })),
+    transitions: from.map((source, slot) => ({ from: ids[source], to: ids[to[slot]], rate: rates[slot], ...(detectedFlags[slot] ? { detected: true } : {}) })),
     ...(schedules.length > 0
       ? {
           tests: schedules
             .map((schedule, scheduleIndex) => ({
-              label: `proof test of ${schedule.tested.map(([group, channel]) => groups[group].channels[channel].id).join(', ')}`,
+              label: `${scheduleLabel(schedule.kind)} of ${schedule.tested.map(([group, channel]) => groups[group].channels[channel].id).join(', ')}`,
               intervalHours: schedule.intervalHours,
               firstHours: schedule.firstHours,
-              moves: testMoves[scheduleIndex].map((move) => ({ from: ids[move.from], to: ids[move.to], probability: 1 })),
+              moves: moves[scheduleIndex].map((move) => ({ from: ids[move.from], to: ids[move.to], probability: 1 })),
             }))
             .filter((test) => test.moves.length > 0),
         }
@@ -322,151 +483,223 @@ function buildChain(groups: readonly GroupPlan[], sharedCrew: boolean): ChainTex
   };
 }
 
-function testSchedules(groups: readonly GroupPlan[]): Schedule[] {
-  const byKey = new Map<string, Schedule>();
+function scheduleLabel(kind: TestSchedule['kind']): string {
+  return kind === 'proof' ? 'proof test' : kind === 'partial' ? 'partial test' : 'end of the proof test';
+}
+
+/** The proof tests, partial tests and test ends, one schedule per (kind, interval, first time). */
+function testSchedules(groups: readonly GroupPlan[], missionHours: number): TestSchedule[] {
+  const byKey = new Map<string, TestSchedule>();
+  const add = (kind: TestSchedule['kind'], intervalHours: number, firstHours: number, tested: [number, number]) => {
+    const key = `${kind}/${intervalHours}/${firstHours}`;
+    const schedule = byKey.get(key) ?? { kind, intervalHours, firstHours, tested: [] };
+    schedule.tested.push(tested);
+    byKey.set(key, schedule);
+  };
   groups.forEach((group, groupIndex) =>
     group.channels.forEach((channel, channelIndex) => {
-      if (channel.intervalHours === undefined || channel.firstHours === undefined) return;
-      const key = `${channel.intervalHours}/${channel.firstHours}`;
-      const schedule = byKey.get(key) ?? { intervalHours: channel.intervalHours, firstHours: channel.firstHours, tested: [] };
-      schedule.tested.push([groupIndex, channelIndex]);
-      byKey.set(key, schedule);
+      if (channel.intervalHours !== undefined && channel.firstHours !== undefined) {
+        add('proof', channel.intervalHours, channel.firstHours, [groupIndex, channelIndex]);
+        // A test still running at the mission end has no end within it (the fault tree clips its window).
+        if (channel.durationHours > 0 && channel.firstHours + channel.durationHours < missionHours) add('end', channel.intervalHours, channel.firstHours + channel.durationHours, [groupIndex, channelIndex]);
+      }
+      if (channel.partialIntervalHours !== undefined && channel.partialFirstHours !== undefined) {
+        add('partial', channel.partialIntervalHours, channel.partialFirstHours, [groupIndex, channelIndex]);
+      }
     }),
   );
   return [...byKey.values()];
 }
 
-function canonicalGroup(group: GroupPlan, state: GroupState): GroupState {
-  if (!group.exchangeable) return state;
-  let ordered = true;
-  for (let slot = 1; slot < group.channels.length && ordered; slot += 1) ordered = state[slot - 1] <= state[slot];
-  if (ordered) return state;
-  const channels = state.slice(0, group.channels.length).sort((a, b) => a - b);
-  return [...channels, state[group.channels.length], state[group.channels.length + 1]];
+/** Sorts the channel slots of exchangeable groups in place. */
+function canonicalize(groups: readonly GroupPlan[], layouts: readonly SlotLayout[], state: Uint8Array): void {
+  groups.forEach((group, groupIndex) => {
+    if (!group.exchangeable) return;
+    const { offset, channels } = layouts[groupIndex];
+    for (let slot = offset + 1; slot < offset + channels; slot += 1) {
+      const value = state[slot];
+      let at = slot;
+      while (at > offset && state[at - 1] > value) {
+        state[at] = state[at - 1];
+        at -= 1;
+      }
+      state[at] = value;
+    }
+  });
 }
 
-function channelFailed(state: GroupState, channel: number): boolean {
-  return state[channel] !== OK;
-}
-
-function isDown(groups: readonly GroupPlan[], state: GroupState[]): boolean {
-  return groups.some((group, position) => {
-    const condition = state[position];
-    const size = group.channels.length;
-    if (condition[size] !== OK || condition[size + 1] !== OK) return true;
+function isDown(groups: readonly GroupPlan[], layouts: readonly SlotLayout[], state: Uint8Array): boolean {
+  return groups.some((group, groupIndex) => {
+    const { offset, channels, sharedSlots } = layouts[groupIndex];
+    if (sharedSlots && (state[offset + channels] !== OK || state[offset + channels + 1] !== OK)) return true;
     let failed = 0;
-    for (let channel = 0; channel < size; channel += 1) if (channelFailed(condition, channel)) failed += 1;
+    for (let slot = offset; slot < offset + channels; slot += 1) if (state[slot] !== OK) failed += 1;
     return failed >= group.k;
   });
 }
 
-function* stateTransitions(groups: readonly GroupPlan[], state: GroupState[], sharedCrew: boolean): Generator<{ target: GroupState[]; rate: number; detected?: boolean }> {
-  const change = (groupIndex: number, slot: number, value: number): GroupState[] =>
-    state.map((group, position) => (position === groupIndex ? group.map((entry, index) => (index === slot ? value : entry)) : group));
-  const crewOn = sharedCrew ? firstUnderRepair(groups, state) : undefined;
-  for (let groupIndex = 0; groupIndex < groups.length; groupIndex += 1) {
-    const group = groups[groupIndex];
-    const condition = state[groupIndex];
-    const size = group.channels.length;
-    const repairs = (slot: number) => !sharedCrew || (crewOn !== undefined && crewOn[0] === groupIndex && crewOn[1] === slot);
-    for (let slot = 0; slot < size; slot += 1) {
-      const channel = group.channels[slot];
-      if (condition[slot] === OK) {
-        yield { target: change(groupIndex, slot, HIDDEN), rate: channel.lambdaDU * channel.coverage };
-        yield { target: change(groupIndex, slot, NEVER_FOUND), rate: channel.lambdaDU * (1 - channel.coverage) };
-        yield { target: change(groupIndex, slot, REPAIR), rate: channel.lambdaDD + channel.lambdaSD, detected: true };
-      } else if (condition[slot] === REPAIR && repairs(slot)) {
-        yield { target: change(groupIndex, slot, OK), rate: 1 / channel.mttrHours };
+/**
+ * Calls `emit` for every rate transition out of `state`, with its target state (not yet canonical)
+ * written into `target` just before; `emit` reads it at once. Rates of zero are emitted too and skipped
+ * by the caller.
+ */
+function forEachTransition(
+  groups: readonly GroupPlan[],
+  layouts: readonly SlotLayout[],
+  state: Uint8Array,
+  sharedCrew: boolean,
+  target: Uint8Array,
+  emit: (rate: number, detected: boolean) => void,
+): void {
+  const change = (slot: number, value: number) => {
+    target.set(state);
+    target[slot] = value;
+  };
+  const crewSlot = sharedCrew ? firstUnderRepair(layouts, state) : -1;
+  groups.forEach((group, groupIndex) => {
+    const { offset, channels, sharedSlots, splits, sharedSplit } = layouts[groupIndex];
+    for (let index = 0; index < channels; index += 1) {
+      const slot = offset + index;
+      const condition = state[slot];
+      const base = condition % UNDER_TEST;
+      const testing = condition - base;
+      const channel = group.channels[index];
+      if (base === OK) {
+        const rates = splits[index];
+        change(slot, HIDDEN_PARTIAL + testing);
+        emit(rates.toPartial, false);
+        change(slot, HIDDEN + testing);
+        emit(rates.toHidden, false);
+        change(slot, NEVER_FOUND + testing);
+        emit(rates.toNever, false);
+        change(slot, REPAIR + testing);
+        emit(channel.lambdaDD + channel.lambdaSD, true);
+      } else if (base === REPAIR && (!sharedCrew || crewSlot === slot)) {
+        change(slot, OK + testing);
+        emit(1 / channel.mttrHours, false);
       }
     }
     const shared = group.shared;
-    if (!shared) continue;
-    if (condition[size] === OK) {
-      yield { target: change(groupIndex, size, HIDDEN), rate: shared.lambdaDU * shared.coverage };
-      yield { target: change(groupIndex, size, NEVER_FOUND), rate: shared.lambdaDU * (1 - shared.coverage) };
-    } else if (condition[size] === REPAIR && repairs(size)) {
-      yield { target: change(groupIndex, size, OK), rate: 1 / shared.mttrHours };
+    if (!shared || !sharedSplit) return;
+    if (sharedSlots) {
+      const du = offset + channels;
+      const dd = du + 1;
+      if (state[du] === OK) {
+        change(du, HIDDEN_PARTIAL);
+        emit(sharedSplit.toPartial, false);
+        change(du, HIDDEN);
+        emit(sharedSplit.toHidden, false);
+        change(du, NEVER_FOUND);
+        emit(sharedSplit.toNever, false);
+      } else if (state[du] === REPAIR) {
+        change(du, OK);
+        emit(1 / shared.mttrHours, false);
+      }
+      if (state[dd] === OK) {
+        change(dd, REPAIR);
+        emit(shared.lambdaDD, true);
+      } else {
+        change(dd, OK);
+        emit(1 / shared.mttrHours, false);
+      }
+      return;
     }
-    if (condition[size + 1] === OK) {
-      yield { target: change(groupIndex, size + 1, REPAIR), rate: shared.lambdaDD, detected: true };
-    } else if (repairs(size + 1)) {
-      yield { target: change(groupIndex, size + 1, OK), rate: 1 / shared.mttrHours };
-    }
-  }
+    // Common cause as a jump of every working channel into the same failed condition.
+    let working = 0;
+    for (let slot = offset; slot < offset + channels; slot += 1) if (state[slot] % UNDER_TEST === OK) working += 1;
+    if (working === 0) return;
+    const jump = (condition: number) => {
+      target.set(state);
+      for (let slot = offset; slot < offset + channels; slot += 1) if (target[slot] % UNDER_TEST === OK) target[slot] += condition;
+    };
+    jump(HIDDEN_PARTIAL);
+    emit(sharedSplit.toPartial, false);
+    jump(HIDDEN);
+    emit(sharedSplit.toHidden, false);
+    jump(NEVER_FOUND);
+    emit(sharedSplit.toNever, false);
+    jump(REPAIR);
+    emit(shared.lambdaDD, true);
+  });
 }
 
-/** The item the shared crew works on: the first under repair in group, channel, shared-event order. */
-function firstUnderRepair(groups: readonly GroupPlan[], state: GroupState[]): [number, number] | undefined {
-  for (let groupIndex = 0; groupIndex < groups.length; groupIndex += 1) {
-    const condition = state[groupIndex];
-    for (let slot = 0; slot < condition.length; slot += 1) {
-      if (condition[slot] === REPAIR && (slot < groups[groupIndex].channels.length || groups[groupIndex].shared)) return [groupIndex, slot];
-    }
+/** The channel slot the shared crew works on: the first under repair in group and channel order, or -1. */
+function firstUnderRepair(layouts: readonly SlotLayout[], state: Uint8Array): number {
+  for (const { offset, channels } of layouts) {
+    for (let slot = offset; slot < offset + channels; slot += 1) if (state[slot] % UNDER_TEST === REPAIR) return slot;
   }
-  return undefined;
+  return -1;
 }
 
-function applyScheduleTest(groups: readonly GroupPlan[], state: GroupState[], schedule: Schedule): GroupState[] {
-  const next = state.map((group) => [...group]);
-  for (const [groupIndex, slot] of schedule.tested) {
+/**
+ * Writes into `target` the state right after a test of the schedule; false when nothing changes. A proof test reveals
+ * both kinds of hidden failure, a partial test those it covers; a revealed failure goes to repair (to ok
+ * when MTTR is 0). A timed proof test takes the channel out of service; its end brings it back. A group's
+ * shared event (shared-event form) is revealed by the test of any of its members.
+ */
+function applyScheduleTest(groups: readonly GroupPlan[], layouts: readonly SlotLayout[], state: Uint8Array, schedule: TestSchedule, target: Uint8Array): boolean {
+  target.set(state);
+  const reveal = (condition: number, mttrHours: number, kinds: 'proof' | 'partial'): number => {
+    const base = condition % UNDER_TEST;
+    const revealed = base === HIDDEN_PARTIAL || (kinds === 'proof' && base === HIDDEN);
+    return revealed ? condition - base + (mttrHours > 0 ? REPAIR : OK) : condition;
+  };
+  const sharedDone = new Set<number>();
+  for (const [groupIndex, index] of schedule.tested) {
     const group = groups[groupIndex];
-    if (next[groupIndex][slot] === HIDDEN) next[groupIndex][slot] = group.channels[slot].mttrHours > 0 ? REPAIR : OK;
-    const size = group.channels.length;
-    if (group.shared && next[groupIndex][size] === HIDDEN) next[groupIndex][size] = group.shared.mttrHours > 0 ? REPAIR : OK;
+    const { offset, channels, sharedSlots } = layouts[groupIndex];
+    const slot = offset + index;
+    const channel = group.channels[index];
+    if (schedule.kind === 'end') {
+      if (target[slot] >= UNDER_TEST) target[slot] -= UNDER_TEST;
+      continue;
+    }
+    target[slot] = reveal(target[slot], channel.mttrHours, schedule.kind);
+    if (schedule.kind === 'proof' && channel.durationHours > 0 && target[slot] < UNDER_TEST) target[slot] += UNDER_TEST;
+    if (sharedSlots && group.shared && !sharedDone.has(groupIndex)) {
+      sharedDone.add(groupIndex);
+      target[offset + channels] = reveal(target[offset + channels], group.shared.mttrHours, schedule.kind);
+    }
   }
-  return next;
+  for (let slot = 0; slot < target.length; slot += 1) if (target[slot] !== state[slot]) return true;
+  return false;
 }
 
-interface RawTransition {
-  readonly from: number;
-  readonly to: number;
-  rate: number;
-  readonly detected: boolean;
-}
-
-/** Sums parallel transitions; detected and undetected ones stay apart (PFH counts only the latter). */
-function mergeTransitions(transitions: RawTransition[]): RawTransition[] {
-  const merged = new Map<string, RawTransition>();
-  for (const transition of transitions) {
-    if (transition.from === transition.to) continue;
-    const key = `${transition.from}/${transition.to}/${transition.detected}`;
-    const existing = merged.get(key);
-    if (existing) existing.rate += transition.rate;
-    else merged.set(key, { ...transition });
-  }
-  return [...merged.values()];
-}
-
-function stateIds(groups: readonly GroupPlan[], states: GroupState[][]): string[] {
+function stateIds(groups: readonly GroupPlan[], layouts: readonly SlotLayout[], states: readonly Uint8Array[]): string[] {
   const codes = states.map((state) =>
-    state
-      .map((condition, position) => {
-        const size = groups[position].channels.length;
-        const channels = condition.slice(0, size).map((value) => CONDITION_LETTERS[value]).join('');
-        return groups[position].shared ? `${channels}-${CONDITION_LETTERS[condition[size]]}${CONDITION_LETTERS[condition[size + 1]]}` : channels;
+    groups
+      .map((_, groupIndex) => {
+        const { offset, channels, sharedSlots } = layouts[groupIndex];
+        let code = '';
+        for (let slot = offset; slot < offset + channels; slot += 1) code += CONDITION_LETTERS[state[slot]];
+        return sharedSlots ? `${code}-${CONDITION_LETTERS[state[offset + channels]]}${CONDITION_LETTERS[state[offset + channels + 1]]}` : code;
       })
       .join('_'),
   );
   return codes.some((code) => code.length > 64) ? states.map((_, position) => `S${position}`) : codes;
 }
 
-function stateLabel(groups: readonly GroupPlan[], state: GroupState[]): string {
-  const text = state
-    .map((condition, position) => {
-      const group = groups[position];
-      const size = group.channels.length;
-      const parts: string[] = [];
+function conditionWords(condition: number): string {
+  return condition >= UNDER_TEST ? `under test, ${CONDITION_WORDS[condition - UNDER_TEST]}` : CONDITION_WORDS[condition];
+}
+
+function stateLabel(groups: readonly GroupPlan[], layouts: readonly SlotLayout[], state: Uint8Array): string {
+  const text = groups
+    .map((group, groupIndex) => {
+      const { offset, channels, sharedSlots } = layouts[groupIndex];
+      const words: string[] = [];
       if (group.exchangeable) {
-        for (let value = 0; value < CONDITION_WORDS.length; value += 1) {
-          const count = condition.slice(0, size).filter((entry) => entry === value).length;
-          if (count > 0) parts.push(`${count} ${CONDITION_WORDS[value]}`);
+        for (let condition = 0; condition < CONDITION_LETTERS.length; condition += 1) {
+          let count = 0;
+          for (let slot = offset; slot < offset + channels; slot += 1) if (state[slot] === condition) count += 1;
+          if (count > 0) words.push(`${count} ${conditionWords(condition)}`);
         }
       } else {
-        condition.slice(0, size).forEach((value, channel) => parts.push(`${group.channels[channel].id} ${CONDITION_WORDS[value]}`));
+        for (let index = 0; index < channels; index += 1) words.push(`${group.channels[index].id} ${conditionWords(state[offset + index])}`);
       }
-      if (group.shared && condition[size] !== OK) parts.push(`common cause ${CONDITION_WORDS[condition[size]]}`);
-      if (group.shared && condition[size + 1] !== OK) parts.push('common cause DD under repair');
-      return `${group.id}: ${parts.join(', ')}`;
+      if (sharedSlots && state[offset + channels] !== OK) words.push(`common cause ${CONDITION_WORDS[state[offset + channels]]}`);
+      if (sharedSlots && state[offset + channels + 1] !== OK) words.push('common cause DD under repair');
+      return `${group.id}: ${words.join(', ')}`;
     })
     .join('; ');
   return text.length > 200 ? `${text.slice(0, 197)}...` : text;

@@ -267,7 +267,7 @@ describe('Markov engine: methods and parts agree', () => {
     expect(sparse.algorithm).toMatch(/uniformization/);
   });
 
-  it('dense and uniformization agree within their stated bounds on a crew chain whose states are nearly all down', () => {
+  it('dense and uniformization agree within their stated bounds on a crew chain whose states are mostly down', () => {
     // Internal consistency of two unrelated algorithms. This chain once differed by 8e-11 against a stated
     // 1e-12: the Van Loan block (one down indicator per state times the step) set the Pade scaling, 11
     // squarings instead of 3, each doubling the rounding carried so far (Higham 2005, section 2), and the
@@ -283,7 +283,7 @@ describe('Markov engine: methods and parts agree', () => {
         { id: 'XV', voting: '1oo1', channels: [channel(2e-6, 1e-6)] },
       ],
     });
-    expect(markov.states.filter((state) => state.down).length).toBeGreaterThan(0.9 * markov.states.length);
+    expect(markov.states.filter((state) => state.down).length).toBeGreaterThan(0.8 * markov.states.length);
     const dense = solveMarkovModel(markov, { chainMethod: 'dense', includeStates: false });
     const sparse = solveMarkovModel(markov, { chainMethod: 'uniformization', includeStates: false });
     const allowed = dense.errorBound! + sparse.errorBound!;
