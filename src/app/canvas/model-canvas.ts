@@ -93,6 +93,12 @@ export class ModelCanvas {
 
   protected readonly markerEnd = EFMarkerType.END_ALL_STATES;
   protected readonly view = computed(() => canvasView(this.model(), this.issues()));
+  /**
+   * The connections drawn: gate inputs and transitions. A common-cause membership is drawn by its band
+   * (and listed, removable, in the group's and the event's properties); a line per member under the band
+   * would only catch the pointer where the background should be.
+   */
+  protected readonly drawnConnections = computed(() => this.view().connections.filter((connection) => connection.variant !== 'member'));
   /** Recomputed when the model or a wrapped card's size changes, never while the view pans. */
   protected readonly bands = computed(() => (this.model().kind === 'fault-tree' ? commonCauseBands(this.view().nodes, this.cardSizes.measured()) : []));
   protected readonly issuesById = computed(() => {
@@ -230,6 +236,7 @@ export class ModelCanvas {
     if (key === '+' || key === '=') return handled(() => this.zoomIn());
     if (key === '-') return handled(() => this.zoomOut());
     if (key === 'f') return handled(() => this.fit());
+    if (key === '0') return handled(() => this.actualSize());
     if (key === 'l') return handled(() => void this.layout(false));
     if (key === 'c') return handled(() => this.startConnecting());
     const arrows: Record<string, { x: number; y: number }> = { arrowleft: { x: -1, y: 0 }, arrowright: { x: 1, y: 0 }, arrowup: { x: 0, y: -1 }, arrowdown: { x: 0, y: 1 } };
@@ -247,6 +254,11 @@ export class ModelCanvas {
 
   protected fit(): void {
     this.canvas()?.fitToScreen({ x: 80, y: 80 }, true);
+  }
+
+  /** Shows the drawing at 100 %, centred on what it holds. */
+  protected actualSize(): void {
+    this.canvas()?.resetScaleAndCenter(true);
   }
 
   protected deleteSelection(): void {
@@ -285,7 +297,7 @@ export class ModelCanvas {
   protected selectAll(): void {
     this.flow()?.selectAll();
     this.selectedNodes.set(this.view().nodes.map((node) => node.id));
-    this.selectedConnections.set(this.view().connections.map((connection) => connection.id));
+    this.selectedConnections.set(this.drawnConnections().map((connection) => connection.id));
   }
 
   protected startConnecting(): void {
