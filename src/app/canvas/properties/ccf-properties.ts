@@ -60,8 +60,8 @@ import { ITEM_ID_PATTERN, numberControl, numberMessage, readControl, uniqueId, f
         </mat-form-field>
       }
       <p class="muted">
-        Members: {{ members() }}. Connect an event's output to this group to add it; select a link and press Delete to
-        remove it.
+        Members: {{ members() }}. Connect an event's output to this group to add it; remove one with its Remove
+        button under Connections.
       </p>
     </form>
   `,
