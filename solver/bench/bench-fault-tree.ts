@@ -87,7 +87,7 @@ function plant(events: number, measureFixedGates: boolean): void {
   const cutSets = timed(() => engine.cutSets(engine.meanUnavailability(), { cutoff: 1e-8 * result.pfdAvg }), 1);
   const memory = process.memoryUsage();
   console.log(`plant tree: ${model.events.length} events, ${model.gates.length} gates, ${groups} voting groups, ${model.ccf?.length ?? 0} CCF groups`);
-  console.log(`  BDD ${engine.nodeCount} nodes in ${engine.tree.modules.length} modules over ${engine.variables.variables.length} variables (${engine.variables.rows.length} distinct timelines), built in ${build.figure}`);
+  console.log(`  BDD ${engine.nodeCount} nodes in ${engine.tree.modules.length} modules over ${engine.variables.variables.length} variables (${engine.variables.rows.length} distinct timelines); evaluated as ${engine.nodeRows} node rows and ${engine.diagram.compositeForms.length} OR modules filled as sums of exponentials; built in ${build.figure}`);
   console.log(`  PFD(t) at ${curve.value.hours.length} points (10,000 + breakpoints): ${curve.figure}`);
   console.log(`  PFDavg alone (adaptive Gauss-Kronrod, ${average.value.partition.length - 1} intervals, rel. error ${average.value.relativeError.toExponential(1)}): ${average.figure}`);
   console.log(`  PFD(t) + PFDavg: ${(curve.seconds + average.seconds).toFixed(3)} s (target 0.3 s at the reference rate)`);

@@ -1,3 +1,8 @@
+import { evaluateForm, FormBuilder, pieceIndex, Terms, type PiecewiseForm } from './piecewise.js';
+import { expm1Small } from './series.js';
+
+export { expm1Small } from './series.js';
+
 /**
  * Exact unavailability q(t) and dangerous failure frequency w(t) of one basic event under its own test
  * and repair policy.
@@ -62,26 +67,12 @@ export interface EventTimeline {
   readonly windowEnds: Float64Array;
   /** Times where q(t) jumps, increasing. */
   readonly breakpoints: Float64Array;
+  /** q(t) as a sum of exponentials on pieces of the mission, the form it is evaluated from. */
+  readonly form: PiecewiseForm;
 }
 
 /** Beyond exp(-40) a repair transient is below 5e-18 of its size and is dropped. */
 const NEGLIGIBLE_EXPONENT = 40;
-
-const INVERSE_FACTORIALS = [1, 1 / 2, 1 / 6, 1 / 24, 1 / 120, 1 / 720, 1 / 5040, 1 / 40320, 1 / 362880, 1 / 3628800, 1 / 39916800, 1 / 479001600];
-const [F1, F2, F3, F4, F5, F6, F7, F8, F9, F10, F11, F12] = INVERSE_FACTORIALS;
-
-/**
- * e^y - 1, as Math.expm1, but for |y| <= 1/4 (DU failures over a test interval, lambda s << 1) from its
- * Taylor series: through y^7/7! for |y| <= 1/64 (truncation below |y| (1/64)^7/8! < 1e-17 |y|), else
- * through y^12/12! (below |y| 0.25^12/13! < 1e-17 |y|). A few multiply-adds in place of a library call,
- * on the hot path of every event at every time point.
- */
-export function expm1Small(y: number): number {
-  const size = Math.abs(y);
-  if (size <= 0.015625) return y * (F1 + y * (F2 + y * (F3 + y * (F4 + y * (F5 + y * (F6 + y * F7))))));
-  if (!(size <= 0.25)) return Math.expm1(y);
-  return y * (F1 + y * (F2 + y * (F3 + y * (F4 + y * (F5 + y * (F6 + y * (F7 + y * (F8 + y * (F9 + y * (F10 + y * (F11 + y * F12)))))))))));
-}
 
 /**
  * mu (e^{-lambda s} - e^{-mu s}) / (mu - lambda): the probability mass that was under repair at the
@@ -133,7 +124,7 @@ export function compileEventTimeline(spec: EventTimelineSpec): EventTimeline {
   const windowStarts = new Float64Array(spec.downWindows.map((window) => window[0]));
   const windowEnds = new Float64Array(spec.downWindows.map((window) => window[1]));
   for (const [start, end] of spec.downWindows) breakpoints.push(start, end);
-  return {
+  const timeline = {
     constant: spec.probability,
     lambdaDD: spec.lambdaDD,
     mu,
@@ -144,46 +135,40 @@ export function compileEventTimeline(spec: EventTimelineSpec): EventTimeline {
     windowEnds,
     breakpoints: sortedUnique(Float64Array.from(breakpoints)),
   };
+  return { ...timeline, form: compileForm(timeline) };
 }
 
-/** Index of the last entry of a sorted array that is <= t (or < t when fromLeft), at least 0. */
-function phaseIndex(starts: Float64Array, t: number, fromLeft: boolean): number {
-  let low = 0;
-  let high = starts.length - 1;
-  while (low < high) {
-    const middle = (low + high + 1) >> 1;
-    const start = starts[middle];
-    if (start < t || (!fromLeft && start === t)) low = middle;
-    else high = middle - 1;
-  }
-  return low;
-}
-
-/** Whether the phase after `phase` has begun at t (strictly before t for a left limit). */
+/** Whether a phase starting at `start` has begun at t (strictly before t for a left limit). */
 function begun(start: number, t: number, fromLeft: boolean): boolean {
   return start < t || (!fromLeft && start === t);
 }
 
+/** The DD chain's unavailability: lambda/(lambda+mu) (1 - e^{-(lambda+mu) t}), its steady state beyond exp(-40). */
+function ddUnavailability(timeline: Omit<EventTimeline, 'form'>, t: number): number {
+  if (timeline.mu === Infinity || timeline.lambdaDD === 0) return 0;
+  const sumRate = timeline.lambdaDD + timeline.mu;
+  const level = timeline.lambdaDD / sumRate;
+  return t >= NEGLIGIBLE_EXPONENT / sumRate ? level : level * -Math.expm1(-sumRate * t);
+}
+
 /**
- * Adds one revealed DU mode's unavailability to q at each time: q <- q + q_m - q q_m (the event is failed
- * when any of its independent modes is). Between reveal times, with s the time since the phase start,
+ * q(t) of one event from the per-mode closed forms (the left limit q(t-) when fromLeft). Between reveal
+ * times, with s the time since the phase start, a revealed DU mode has
  * q_m = 1 - (1 - notWorking) e^{-lambda s} - factor (e^{-lambda s} - e^{-mu s}) (the three-state chain's
- * closed form, see repairedShare). One loop per mode over every time keeps the loop small for the JIT;
- * the phase moves forward with the (usually sorted) times and is searched only when they step back.
+ * closed form, see repairedShare); the modes combine as q <- q + q_m - q q_m (the event is failed when any
+ * of its independent modes is); a test window with the event out of service gives 1.
  */
-function addRevealedMode(mode: CompiledMode, mu: number, times: Float64Array, q: Float64Array, offset: number, fromLeft: Uint8Array | undefined): void {
-  const { starts, notWorking, repairFactor, lambda, equalRates } = mode;
-  const last = starts.length - 1;
+export function unavailabilityAt(timeline: Omit<EventTimeline, 'form'>, t: number, fromLeft = false): number {
+  if (timeline.constant !== undefined) return timeline.constant;
+  const { windowStarts, windowEnds, mu } = timeline;
+  if (windowStarts.length > 0 && begun(windowStarts[0], t, fromLeft)) {
+    const window = pieceIndex(windowStarts, t, fromLeft);
+    if (fromLeft ? t <= windowEnds[window] : t < windowEnds[window]) return 1;
+  }
+  let q = ddUnavailability(timeline, t);
   const repairHorizon = mu === Infinity ? 0 : NEGLIGIBLE_EXPONENT / mu;
-  let phase = 0;
-  let previous = -Infinity;
-  for (let j = 0; j < times.length; j++) {
-    const t = times[j];
-    const left = fromLeft !== undefined && fromLeft[j] === 1;
-    if (t < previous) phase = phaseIndex(starts, t, left);
-    previous = t;
-    while (phase < last && begun(starts[phase + 1], t, left)) phase++;
-    while (phase > 0 && !begun(starts[phase], t, left)) phase--;
+  for (const { starts, notWorking, repairFactor, lambda, equalRates } of timeline.modes) {
+    const phase = pieceIndex(starts, t, fromLeft);
     const s = t - starts[phase];
     const down = notWorking[phase];
     const lambdaTerm = expm1Small(-lambda * s);
@@ -194,17 +179,95 @@ function addRevealedMode(mode: CompiledMode, mu: number, times: Float64Array, q:
       if (equalRates) qm -= factor * mu * s * decayLambda;
       else qm -= factor * (s < repairHorizon ? decayLambda - Math.exp(-mu * s) : decayLambda);
     }
-    const at = offset + j;
-    const value = q[at];
-    q[at] = value + qm - value * qm;
+    q = q + qm - q * qm;
   }
+  if (timeline.lambdaNeverRevealed > 0) {
+    const qn = -expm1Small(-timeline.lambdaNeverRevealed * t);
+    q = q + qn - q * qn;
+  }
+  return q;
 }
 
 /**
- * Writes q(t) (and, when wanted, w(t), the frequency of DU failures = lambdaDU (1 - q(t)) outside test
- * windows) of one event at each time into out arrays at the given offsets.
+ * The event's form (see PiecewiseForm). Pieces start at 0, at every test of any mode, at each test
+ * window's start and end, where a repair transient falls below e^{-40} and where the DD chain settles.
+ * On a piece from a, a revealed mode in the phase that began at p, with e = a - p, has
+ * 1 - q_m = (1 - notWorking + factor) e^{-lambda e} e^{-lambda s} - factor e^{-mu e} e^{-mu s}
+ * (s = t - a; the second term only while the repair transient lasts), the DD chain
+ * 1 - q_DD = mu/(lambda+mu) + lambda/(lambda+mu) e^{-(lambda+mu) a} e^{-(lambda+mu) s} until it settles,
+ * the never-revealed mode e^{-lambda t}; the piece's sum is their product.
+ */
+function compileForm(timeline: Omit<EventTimeline, 'form'>): PiecewiseForm {
+  const { mu, modes, windowStarts, windowEnds } = timeline;
+  const builder = new FormBuilder(mu, (t, fromLeft) => unavailabilityAt(timeline, t, fromLeft));
+  if (timeline.constant !== undefined) {
+    const piece = new Terms();
+    piece.q = timeline.constant;
+    piece.constant = 1 - timeline.constant;
+    builder.add(0, piece);
+    return builder.build();
+  }
+  const repairHorizon = mu === Infinity ? Infinity : NEGLIGIBLE_EXPONENT / mu;
+  const bounds: number[] = [0];
+  for (const mode of modes) {
+    for (let phase = 0; phase < mode.starts.length; phase++) {
+      bounds.push(mode.starts[phase]);
+      if (mode.repairFactor[phase] !== 0 && !mode.equalRates) bounds.push(mode.starts[phase] + repairHorizon);
+    }
+  }
+  for (let index = 0; index < windowStarts.length; index++) bounds.push(windowStarts[index], windowEnds[index]);
+  const sumRate = timeline.lambdaDD + mu;
+  const ddLevel = mu === Infinity ? 0 : timeline.lambdaDD / sumRate;
+  const settled = NEGLIGIBLE_EXPONENT / sumRate;
+  if (ddLevel > 0) bounds.push(settled);
+  const starts = sortedUnique(Float64Array.from(bounds.filter((time) => time >= 0 && Number.isFinite(time))));
+  const factor = new Terms();
+  const piece = new Terms();
+  for (const a of starts) {
+    piece.reset();
+    piece.q = unavailabilityAt(timeline, a);
+    const window = windowStarts.length > 0 ? pieceIndex(windowStarts, a, false) : -1;
+    if (window >= 0 && windowStarts[window] <= a && a < windowEnds[window]) {
+      // Out of service for a test: 1 - q is 0 on the whole piece.
+      piece.q = 1;
+      piece.constant = 0;
+      builder.add(a, piece);
+      continue;
+    }
+    if (ddLevel > 0) {
+      if (a < settled) factor.set(1 - ddLevel, [ddLevel * Math.exp(-sumRate * a)], [sumRate], [1], [timeline.lambdaDD]);
+      else factor.set(1 - ddLevel, [], [], [], []);
+      piece.multiply(factor, true);
+    }
+    for (const mode of modes) {
+      const phase = pieceIndex(mode.starts, a, false);
+      const begin = mode.starts[phase];
+      const repair = mode.repairFactor[phase];
+      const elapsed = a - begin;
+      if (repair !== 0 && mode.equalRates) piece.direct = true;
+      const kept = (1 - mode.notWorking[phase] + repair) * Math.exp(-mode.lambda * elapsed);
+      // set() puts a term of exponent 0 (lambda 0) into the constant.
+      if (repair !== 0 && !mode.equalRates && a < begin + repairHorizon) factor.set(0, [kept, -repair * Math.exp(-mu * elapsed)], [mode.lambda, mu], [0, 1], [mode.lambda, 0]);
+      else factor.set(0, [kept], [mode.lambda], [0], [mode.lambda]);
+      piece.multiply(factor, true);
+    }
+    const hidden = timeline.lambdaNeverRevealed;
+    if (hidden > 0) {
+      factor.set(0, [Math.exp(-hidden * a)], [hidden], [0], [hidden]);
+      piece.multiply(factor, true);
+    }
+    builder.add(a, piece);
+  }
+  return builder.build();
+}
+
+/**
+ * Writes q(t) (and, when wanted, w(t), the frequency of DU failures = lambdaDU (1 - q(t)), 0 in a test
+ * window) of one event at each time into out arrays at the given offsets, from the event's form.
  * @param fromLeft when given, a 1 at index j asks for the left limit q(t-) at times[j].
  * @param wOffset where the event's row starts in wOut (default: offset).
+ * @param ordered whether the times are in order (see inOrder; checked when not given).
+ * @param steps the times' repair steps for the event's repair rate (see repairSteps), when shared.
  */
 export function evaluateEventTimeline(
   timeline: EventTimeline,
@@ -214,53 +277,8 @@ export function evaluateEventTimeline(
   wOut?: Float64Array,
   fromLeft?: Uint8Array,
   wOffset = offset,
+  ordered?: boolean,
+  steps?: Float64Array,
 ): void {
-  const count = times.length;
-  if (timeline.constant !== undefined) {
-    qOut.fill(timeline.constant, offset, offset + count);
-    if (wOut) wOut.fill(0, wOffset, wOffset + count);
-    return;
-  }
-  const sumRate = timeline.lambdaDD + timeline.mu;
-  const ddLevel = timeline.mu === Infinity ? 0 : timeline.lambdaDD / sumRate;
-  if (ddLevel > 0) {
-    // The DD chain has reached its steady state within rounding beyond exp(-40).
-    const settled = NEGLIGIBLE_EXPONENT / sumRate;
-    for (let j = 0; j < count; j++) {
-      const t = times[j];
-      qOut[offset + j] = t >= settled ? ddLevel : ddLevel * -Math.expm1(-sumRate * t);
-    }
-  } else {
-    qOut.fill(0, offset, offset + count);
-  }
-  for (const mode of timeline.modes) addRevealedMode(mode, timeline.mu, times, qOut, offset, fromLeft);
-  const hidden = timeline.lambdaNeverRevealed;
-  if (hidden > 0) {
-    for (let j = 0; j < count; j++) {
-      const qn = -expm1Small(-hidden * times[j]);
-      const value = qOut[offset + j];
-      qOut[offset + j] = value + qn - value * qn;
-    }
-  }
-  if (wOut) {
-    const lambdaDU = timeline.lambdaDU;
-    for (let j = 0; j < count; j++) wOut[wOffset + j] = lambdaDU * (1 - qOut[offset + j]);
-  }
-  const windowStarts = timeline.windowStarts;
-  if (windowStarts.length === 0) return;
-  const windowEnds = timeline.windowEnds;
-  let window = -1;
-  let previous = -Infinity;
-  for (let j = 0; j < count; j++) {
-    const t = times[j];
-    const left = fromLeft !== undefined && fromLeft[j] === 1;
-    if (t < previous) window = phaseIndex(windowStarts, t, left) - (begun(windowStarts[0], t, left) ? 0 : 1);
-    previous = t;
-    while (window + 1 < windowStarts.length && begun(windowStarts[window + 1], t, left)) window++;
-    while (window >= 0 && !begun(windowStarts[window], t, left)) window--;
-    if (window >= 0 && (left ? t <= windowEnds[window] : t < windowEnds[window])) {
-      qOut[offset + j] = 1;
-      if (wOut) wOut[wOffset + j] = 0;
-    }
-  }
+  evaluateForm(timeline.form, times, qOut, offset, timeline.lambdaDU, wOut, fromLeft, wOffset, ordered, steps);
 }

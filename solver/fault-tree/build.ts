@@ -199,11 +199,35 @@ export function buildTree(model: FaultTreeModel, variables: TreeVariables, optio
     rank[variable] = position;
     variableAt[position++] = variable;
   };
+  // Inputs are visited modules first (they are independent of the rest), then the other gates by the
+  // smallest event used by several gates below them (not looking inside modules): the parts of the tree
+  // that depend on the same shared event come next to each other, and the diagram repeats as little as
+  // possible between the first and the last test of that event. Linear in the tree's size.
+  const sharedBelow = new Float64Array(gates.length).fill(NaN);
+  const smallestShared = (node: number): number => {
+    const index = node - variableCount;
+    if (!Number.isNaN(sharedBelow[index])) return sharedBelow[index];
+    sharedBelow[index] = Infinity;
+    let smallest = Infinity;
+    for (const input of gates[index].inputs) {
+      if (input < variableCount) {
+        if (counts[input] > 1) smallest = Math.min(smallest, input);
+      } else if (!moduleOf.has(input)) {
+        smallest = Math.min(smallest, smallestShared(input));
+      }
+    }
+    sharedBelow[index] = smallest;
+    return smallest;
+  };
+  const keyOf = (input: number) => (input < variableCount ? -1 : moduleOf.has(input) ? -0.5 : smallestShared(input));
   const ordered = new Uint8Array(gates.length);
   const order = (node: number) => {
     if (ordered[node - variableCount]) return;
     ordered[node - variableCount] = 1;
-    const inputs = gates[node - variableCount].inputs;
+    const inputs = [...gates[node - variableCount].inputs].sort((a, b) => {
+      const [keyA, keyB] = [keyOf(a), keyOf(b)];
+      return keyA === keyB ? 0 : keyA < keyB ? -1 : 1;
+    });
     for (const input of inputs) if (input < variableCount && counts[input] > 1) place(input);
     for (const input of inputs) {
       if (input < variableCount) {

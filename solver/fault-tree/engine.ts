@@ -4,7 +4,7 @@ import { integrateAdaptive, kronrodOnPartition, type PartitionRule } from '../co
 import { curveTimes } from '../common/time-grid.js';
 import { BddNodeLimitError } from './bdd.js';
 import { buildTree, type BuiltTree } from './build.js';
-import { attach, backwardIntegrals, fillTimelines, flatten, forwardAttached, forwardPass, variableMatrix, type AttachedDiagram, type FlatDiagram } from './evaluate.js';
+import { attach, backwardIntegrals, fillTable, flatten, forwardAttached, forwardPass, variableMatrix, type AttachedDiagram, type FlatDiagram } from './evaluate.js';
 import type { EventTimeline } from '../events/event-timeline.js';
 import { minimalCutSets, type MinimalCutSetOptions, type MinimalCutSets } from './minimal-cut-sets.js';
 import { compileVariables, type TreeVariables } from './variables.js';
@@ -100,6 +100,8 @@ export class FaultTreeEngine {
   readonly quadratureEdges: Float64Array;
   private readonly signal: AbortSignal | undefined;
   private readonly batch: number;
+  /** Scratch tables kept between calls (the passes are synchronous, so one set serves them all). */
+  private readonly buffers: Float64Array[] = [];
 
   constructor(
     readonly model: FaultTreeModel,
@@ -110,7 +112,7 @@ export class FaultTreeEngine {
     this.variables = options.variables ?? compileVariables(model);
     throwIfAborted(this.signal);
     this.tree = buildTree(model, this.variables, { nodeLimit: options.nodeLimit ?? 2_000_000, modular: options.modular });
-    this.diagram = flatten(this.tree.bdd, this.tree.modules, this.tree.variableAt, this.variables.rowOf, this.variables.rows.length);
+    this.diagram = flatten(this.tree.bdd, this.tree.modules, this.tree.variableAt, this.variables.rowOf, this.variables.rows);
     const points = new Set<number>([0, this.missionHours]);
     for (const timeline of this.variables.rows) {
       for (const time of timeline.breakpoints) if (time > 0 && time < this.missionHours) points.add(time);
@@ -120,8 +122,13 @@ export class FaultTreeEngine {
     this.batch = Math.max(8, Math.min(4096, Math.floor((options.scratchDoubles ?? 2 ** 21) / this.diagram.size)));
   }
 
-  /** Diagram nodes evaluated per time point (the table's rows less the terminals and the timelines' rows). */
+  /** Nodes of the modules' diagrams (OR modules' chains included). */
   get nodeCount(): number {
+    return this.diagram.diagramNodes;
+  }
+
+  /** Node rows swept per time point (the OR modules are filled with the timelines instead). */
+  get nodeRows(): number {
     return this.diagram.size - this.diagram.firstNode;
   }
 
@@ -130,17 +137,26 @@ export class FaultTreeEngine {
    * a forward pass for PFDavg and a forward and a backward pass for PFH).
    */
   expectedWork(timePoints: number): number {
-    return this.nodeCount * (timePoints + 2 * this.edges.length + 15 * this.quadratureEdges.length * 4);
+    return (this.nodeRows + this.diagram.memberVariable.length) * (timePoints + 2 * this.edges.length + 15 * this.quadratureEdges.length * 4);
+  }
+
+  /** Scratch buffer number `index`, of at least `doubles` doubles, reused from call to call (contents undefined). */
+  private scratch(index: number, doubles: number): Float64Array {
+    const known = this.buffers[index];
+    if (known && known.length >= doubles) return known;
+    const buffer = new Float64Array(doubles);
+    this.buffers[index] = buffer;
+    return buffer;
   }
 
   /** P(top) at each time (the left limit where fromLeft[j] is 1), in batches. */
   topProbability(times: Float64Array, fromLeft?: Uint8Array): Float64Array {
     const out = new Float64Array(times.length);
-    const values = new Float64Array(this.diagram.size * this.batch);
+    const values = this.scratch(0, this.diagram.size * this.batch);
     for (let start = 0; start < times.length; start += this.batch) {
       throwIfAborted(this.signal);
       const slice = times.subarray(start, Math.min(times.length, start + this.batch));
-      fillTimelines(this.variables.rows, slice, values, undefined, fromLeft?.subarray(start, start + slice.length));
+      fillTable(this.diagram, this.variables.rows, slice, values, undefined, fromLeft?.subarray(start, start + slice.length));
       out.set(forwardPass(this.diagram, values, slice.length), start);
     }
     return out;
@@ -155,9 +171,9 @@ export class FaultTreeEngine {
     const frequency = new Float64Array(times.length);
     const batch = Math.max(8, Math.floor(this.batch / 2));
     const size = this.diagram.size;
-    const values = new Float64Array(size * batch);
-    const reach = new Float64Array(size * batch);
-    const w = new Float64Array(this.variables.rows.length * batch);
+    const values = this.scratch(0, size * batch);
+    const reach = this.scratch(1, size * batch);
+    const w = this.scratch(2, (this.diagram.firstNode - 2) * batch);
     const extended = this.variables.variables.length + this.tree.modules.length;
     const unused = [new Float64Array(extended), new Float64Array(extended)];
     const noWeights = new Float64Array(batch);
@@ -165,9 +181,9 @@ export class FaultTreeEngine {
       throwIfAborted(this.signal);
       const count = Math.min(batch, times.length - start);
       const slice = times.subarray(start, start + count);
-      fillTimelines(this.variables.rows, slice, values, w, fromLeft?.subarray(start, start + count));
+      fillTable(this.diagram, this.variables.rows, slice, values, w, fromLeft?.subarray(start, start + count));
       pfd.set(forwardPass(this.diagram, values, count), start);
-      backwardIntegrals(this.diagram, values, w, count, reach, noWeights, unused[0], unused[1], frequency.subarray(start, start + count));
+      backwardIntegrals(this.diagram, values, w, count, reach, noWeights, unused[0], unused[1], frequency.subarray(start, start + count), false);
     }
     return { pfd, frequency };
   }
@@ -243,15 +259,15 @@ export class FaultTreeEngine {
     const timelineRows = this.variables.rows.length;
     const batch = Math.max(8, Math.floor(this.batch / 2));
     const rows = fixedGates.reduce((most, gate) => Math.max(most, gate.failed.size, gate.working.size), diagram.size);
-    const values = new Float64Array(rows * batch);
-    const reach = new Float64Array(diagram.size * batch);
-    const w = new Float64Array(timelineRows * batch);
+    const values = this.scratch(0, rows * batch);
+    const reach = this.scratch(1, diagram.size * batch);
+    const w = this.scratch(2, (diagram.firstNode - 2) * batch);
     const shifts = fixedGates.map(() => ({ failed: 0, working: 0 }));
     for (let start = 0; start < times.length; start += batch) {
       throwIfAborted(this.signal);
       const count = Math.min(batch, times.length - start);
       const slice = times.subarray(start, start + count);
-      fillTimelines(this.variables.rows, slice, values, w);
+      fillTable(diagram, this.variables.rows, slice, values, w, undefined, true);
       top.set(forwardPass(diagram, values, count), start);
       const batchWeights = weights.subarray(start, start + count);
       backwardIntegrals(diagram, values, w, count, reach, batchWeights, birnbaumIntegral, qTimesBirnbaumIntegral, frequency.subarray(start, start + count));

@@ -1,4 +1,5 @@
 import { evaluateEventTimeline } from '../events/event-timeline.js';
+import { evaluateForm, formAt, inOrder, orForms, repairSteps, type PiecewiseForm } from '../events/piecewise.js';
 import type { Bdd } from './bdd.js';
 import type { DiagramModule } from './build.js';
 import type { EventTimeline } from '../events/event-timeline.js';
@@ -6,16 +7,34 @@ import type { EventTimeline } from '../events/event-timeline.js';
 /**
  * The modules' diagrams flattened into one table for evaluation. Every row is a vector over the time
  * points of a batch: rows 0 and 1 are FALSE and TRUE, the next rows hold the events' q(t) (one per
- * distinct timeline), then come the diagram nodes, each module's after those of its child modules. A node
- * reads "if its variable then high else low"; source is the row holding that variable's probability:
- * a timeline's q row, or the root row of the child module it tests. So one bottom-up sweep evaluates every
- * module in turn, and one top-down sweep passes each module's importance down into its diagram.
+ * distinct timeline), then one row per OR module (a module whose diagram is a chain of model variables,
+ * such as a channel's device, I/O card and relay), then the diagram nodes, each module's after those of
+ * its child modules. An OR module's row is 1 - prod(1 - q_i) over its members, filled with the timelines
+ * (fillTable) instead of a node per member. A node reads "if its variable then high else low"; source is
+ * the row holding that variable's probability: a timeline's q row, or the row of the child module it
+ * tests. So one bottom-up sweep evaluates every module in turn, and one top-down sweep passes each
+ * module's importance down into its diagram.
  */
 export interface FlatDiagram {
   /** Rows of the table. */
   readonly size: number;
-  /** First node row: 2 + the number of timeline rows. */
+  /** First OR-module row: 2 + the number of timeline rows. */
+  readonly firstComposite: number;
+  /** First node row: firstComposite + the number of OR modules. */
   readonly firstNode: number;
+  /** OR module c's members are memberStart[c] .. memberStart[c + 1] - 1 of the member arrays. */
+  readonly memberStart: Int32Array;
+  /** Each member's model variable and its timeline row (an index into the timelines, not a table row). */
+  readonly memberVariable: Int32Array;
+  readonly memberRow: Int32Array;
+  /** Per OR module: the sum of its members' DU rates, its failure frequency being that times 1 - q. */
+  readonly compositeRate: Float64Array;
+  /** Per OR module: its q(t), the OR of its members' forms (see orForms). */
+  readonly compositeForms: readonly PiecewiseForm[];
+  /** 1 for each timeline a node reads; 2 for one only OR modules' members are (needed for their importance only). */
+  readonly usedRows: Uint8Array;
+  /** Diagram nodes of the modules, OR modules' chains included (the diagram's size). */
+  readonly diagramNodes: number;
   /** Per node row: the variable tested (a model variable, or variable count + module index). */
   readonly variable: Int32Array;
   readonly source: Int32Array;
@@ -57,27 +76,65 @@ function nodesBelow(bdd: Bdd, roots: readonly number[], known: ReadonlyMap<numbe
   return nodes.sort((a, b) => a - b);
 }
 
+/** The model variables of a module's diagram when it is a chain "x1 or x2 or ..." (each node's high TRUE), else undefined. */
+function orChain(bdd: Bdd, root: number, variableAt: Int32Array, variableCount: number): number[] | undefined {
+  const members: number[] = [];
+  for (let node = root; node !== 0; node = bdd.lowOf(node)) {
+    const tested = variableAt[bdd.variableOf(node)];
+    if (node === 1 || bdd.highOf(node) !== 1 || tested >= variableCount) return undefined;
+    members.push(tested);
+  }
+  return members.length >= 2 ? members : undefined;
+}
+
 /**
  * Flattens the modules' diagrams into one table.
  * @param variableAt the model or module variable at each diagram position.
- * @param rowOf each model variable's timeline row; timelineRows their number.
+ * @param rowOf each model variable's timeline row; timelines the distinct timelines.
  */
-export function flatten(bdd: Bdd, modules: readonly DiagramModule[], variableAt: Int32Array, rowOf: Int32Array, timelineRows: number): FlatDiagram {
+export function flatten(bdd: Bdd, modules: readonly DiagramModule[], variableAt: Int32Array, rowOf: Int32Array, timelines: readonly EventTimeline[]): FlatDiagram {
   const variableCount = rowOf.length;
-  const firstNode = 2 + timelineRows;
+  const timelineRows = timelines.length;
+  const firstComposite = 2 + timelineRows;
+  const chains = modules.map((module) => orChain(bdd, module.root, variableAt, variableCount));
+  const composites = chains.filter((chain) => chain !== undefined).length;
+  const firstNode = firstComposite + composites;
   const rowOfNode = new Map<number, number>([
     [0, 0],
     [1, 1],
   ]);
   const moduleRoots = new Int32Array(modules.length);
+  const memberStart = new Int32Array(composites + 1);
+  const memberVariable: number[] = [];
+  const compositeRate = new Float64Array(composites);
+  const usedRows = new Uint8Array(timelineRows);
+  const compositeForms: PiecewiseForm[] = [];
   const ordered: number[] = [];
+  let composite = 0;
+  let diagramNodes = 0;
   modules.forEach((module, index) => {
+    const chain = chains[index];
+    if (chain) {
+      const row = firstComposite + composite;
+      rowOfNode.set(module.root, row);
+      moduleRoots[index] = row;
+      memberVariable.push(...chain);
+      for (const member of chain) {
+        compositeRate[composite] += timelines[rowOf[member]].lambdaDU;
+        if (usedRows[rowOf[member]] === 0) usedRows[rowOf[member]] = 2;
+      }
+      compositeForms.push(orOfTimelines(chain.map((member) => timelines[rowOf[member]])));
+      memberStart[++composite] = memberVariable.length;
+      diagramNodes += chain.length;
+      return;
+    }
     for (const node of nodesBelow(bdd, [module.root], rowOfNode)) {
       rowOfNode.set(node, firstNode + ordered.length);
       ordered.push(node);
     }
     moduleRoots[index] = rowOfNode.get(module.root) as number;
   });
+  diagramNodes += ordered.length;
   const size = firstNode + ordered.length;
   const variable = new Int32Array(size).fill(-1);
   const source = new Int32Array(size).fill(-1);
@@ -90,10 +147,30 @@ export function flatten(bdd: Bdd, modules: readonly DiagramModule[], variableAt:
     variable[row] = tested;
     testsModule[row] = tested >= variableCount ? 1 : 0;
     source[row] = tested >= variableCount ? moduleRoots[tested - variableCount] : 2 + rowOf[tested];
+    if (tested < variableCount) usedRows[rowOf[tested]] = 1;
     low[row] = rowOfNode.get(bdd.lowOf(node)) as number;
     high[row] = rowOfNode.get(bdd.highOf(node)) as number;
   });
-  return { size, firstNode, variable, source, low, high, testsModule, moduleRoots, root: moduleRoots[modules.length - 1], rowOfNode };
+  return {
+    size,
+    firstComposite,
+    firstNode,
+    memberStart,
+    memberVariable: Int32Array.from(memberVariable),
+    memberRow: Int32Array.from(memberVariable, (member) => rowOf[member]),
+    compositeRate,
+    compositeForms,
+    usedRows,
+    diagramNodes,
+    variable,
+    source,
+    low,
+    high,
+    testsModule,
+    moduleRoots,
+    root: moduleRoots[modules.length - 1],
+    rowOfNode,
+  };
 }
 
 /**
@@ -119,14 +196,68 @@ export function attach(bdd: Bdd, root: number, table: FlatDiagram, variableAt: I
 }
 
 /**
- * Writes every timeline's q(t) at a batch of times into the table's rows 2.. (and, when wanted, the DU
- * failure frequencies w(t) into w, one row per timeline).
+ * Fills the table's rows below the nodes at a batch of times: the q(t) of every timeline a node reads
+ * into rows 2.., and each OR module's q(t) from its form (and, when wanted, the failure frequencies into
+ * w, one row per table row from row 2 on: a timeline's lambdaDU (1 - q), an OR module's sum of its
+ * members' lambdaDU times 1 - q, which is sum_i w_i prod_{j != i} (1 - q_j), the members' frequencies
+ * through the module).
+ * @param members also fill the timelines only OR modules' members have (for their importance).
  */
-export function fillTimelines(rows: readonly EventTimeline[], times: Float64Array, values: Float64Array, w?: Float64Array, fromLeft?: Uint8Array): void {
+export function fillTable(
+  diagram: FlatDiagram,
+  rows: readonly EventTimeline[],
+  times: Float64Array,
+  values: Float64Array,
+  w?: Float64Array,
+  fromLeft?: Uint8Array,
+  members = false,
+): void {
   const count = times.length;
   values.fill(0, 0, count);
   values.fill(1, count, 2 * count);
-  rows.forEach((timeline, index) => evaluateEventTimeline(timeline, times, values, (2 + index) * count, w, fromLeft, index * count));
+  const used = diagram.usedRows;
+  const ordered = inOrder(times, fromLeft);
+  const steps = new SharedSteps(times);
+  for (let index = 0; index < rows.length; index++) {
+    if (used[index] === 0 || (used[index] === 2 && !members)) continue;
+    const timeline = rows[index];
+    evaluateEventTimeline(timeline, times, values, (2 + index) * count, w, fromLeft, index * count, ordered, steps.of(timeline.form.mu));
+  }
+  const { compositeForms, compositeRate, firstComposite } = diagram;
+  compositeForms.forEach((form, composite) => {
+    const row = firstComposite + composite;
+    evaluateForm(form, times, values, row * count, compositeRate[composite], w, fromLeft, (row - 2) * count, ordered, steps.of(form.mu));
+  });
+}
+
+/** The OR of independent events' timelines as one form (an OR module's q(t)). */
+function orOfTimelines(timelines: readonly EventTimeline[]): PiecewiseForm {
+  const mu = timelines.find((timeline) => timeline.form.mu !== Infinity)?.form.mu ?? Infinity;
+  return orForms(
+    timelines.map((timeline) => timeline.form),
+    mu,
+    (t, fromLeft) => timelines.reduce((q, timeline) => {
+      const qi = formAt(timeline.form, t, fromLeft);
+      return q + qi - q * qi;
+    }, 0),
+  );
+}
+
+/** The repair steps of a batch of times (see repairSteps), computed once per repair rate and shared by the timelines. */
+class SharedSteps {
+  private readonly byRate = new Map<number, Float64Array>();
+
+  constructor(private readonly times: Float64Array) {}
+
+  of(mu: number): Float64Array | undefined {
+    if (mu === Infinity) return undefined;
+    let steps = this.byRate.get(mu);
+    if (!steps) {
+      steps = repairSteps(this.times, mu);
+      this.byRate.set(mu, steps);
+    }
+    return steps;
+  }
 }
 
 /** Event unavailabilities (and DU failure frequencies) at a batch of times, one row per timeline. */
@@ -139,20 +270,39 @@ export function variableMatrix(
   const count = times.length;
   const q = new Float64Array(rows.length * count);
   const w = withFrequency ? new Float64Array(rows.length * count) : undefined;
-  rows.forEach((timeline, index) => evaluateEventTimeline(timeline, times, q, index * count, w, fromLeft));
+  const ordered = inOrder(times, fromLeft);
+  const steps = new SharedSteps(times);
+  rows.forEach((timeline, index) => evaluateEventTimeline(timeline, times, q, index * count, w, fromLeft, index * count, ordered, steps.of(timeline.form.mu)));
   return { q, w };
 }
 
-/** P(node) = P(low) + q (P(high) - P(low)) for rows first..end-1, in increasing order. */
+/**
+ * P(node) = P(low) + q (P(high) - P(low)) for rows first..end-1, in increasing order; a node whose high
+ * child is TRUE (an OR) reads P(low) + q (1 - P(low)), one whose low child is FALSE (an AND) q P(high):
+ * one row fewer to read.
+ */
 function sweepUp(values: Float64Array, source: Int32Array, low: Int32Array, high: Int32Array, offset: number, first: number, end: number, count: number): void {
   for (let row = first; row < end; row++) {
     const out = row * count;
-    const lowAt = low[row - offset] * count;
-    const highAt = high[row - offset] * count;
+    const lowRow = low[row - offset];
+    const highRow = high[row - offset];
     const qAt = source[row - offset] * count;
-    for (let j = 0; j < count; j++) {
-      const p0 = values[lowAt + j];
-      values[out + j] = p0 + values[qAt + j] * (values[highAt + j] - p0);
+    if (highRow === 1) {
+      const lowAt = lowRow * count;
+      for (let j = 0; j < count; j++) {
+        const p0 = values[lowAt + j];
+        values[out + j] = p0 + values[qAt + j] * (1 - p0);
+      }
+    } else if (lowRow === 0) {
+      const highAt = highRow * count;
+      for (let j = 0; j < count; j++) values[out + j] = values[qAt + j] * values[highAt + j];
+    } else {
+      const lowAt = lowRow * count;
+      const highAt = highRow * count;
+      for (let j = 0; j < count; j++) {
+        const p0 = values[lowAt + j];
+        values[out + j] = p0 + values[qAt + j] * (values[highAt + j] - p0);
+      }
     }
   }
 }
@@ -188,10 +338,14 @@ export function forwardAttached(diagram: AttachedDiagram, values: Float64Array, 
  * (Rausand & Hoyland, System Reliability Theory, 2nd ed., chapter on system reliability, from memory).
  * Every term is non-negative for a coherent tree, so summing per node instead of per variable changes the
  * totals by rounding only.
+ * An OR module's row (see FlatDiagram) receives its reach from the nodes testing it; it adds reach times its
+ * frequency to the top's, and, when importance is wanted, passes B_i = reach prod_{j != i} (1 - q_j) to
+ * each member i (the chain rule through 1 - prod(1 - q_j)).
  * @param reach scratch of size * count doubles, left holding each node's reach (a module root's reach is
  *   dP(top)/dP(module)).
- * @param w the timelines' DU failure frequencies, one row per timeline.
+ * @param w the failure frequencies, one row per table row from row 2 on (see fillTable).
  * @param frequency out, count doubles, added to.
+ * @param importance false when only the frequency is wanted (the integrals are then left alone).
  */
 export function backwardIntegrals(
   diagram: FlatDiagram,
@@ -203,8 +357,9 @@ export function backwardIntegrals(
   birnbaumIntegral: Float64Array,
   qTimesBirnbaumIntegral: Float64Array,
   frequency: Float64Array,
+  importance = true,
 ): void {
-  const { variable, source, low, high, testsModule, firstNode } = diagram;
+  const { variable, source, low, high, testsModule, firstNode, firstComposite } = diagram;
   reach.fill(0, 0, diagram.size * count);
   reach.fill(1, diagram.root * count, diagram.root * count + count);
   for (let node = diagram.size - 1; node >= firstNode; node--) {
@@ -242,7 +397,32 @@ export function backwardIntegrals(
         frequency[j] += b * w[wAt + j];
       }
     }
-    birnbaumIntegral[variable[node]] += sumB;
-    qTimesBirnbaumIntegral[variable[node]] += sumQB;
+    if (importance) {
+      birnbaumIntegral[variable[node]] += sumB;
+      qTimesBirnbaumIntegral[variable[node]] += sumQB;
+    }
+  }
+  const { memberStart, memberRow, memberVariable } = diagram;
+  for (let composite = 0; composite + 1 < memberStart.length; composite++) {
+    const at = (firstComposite + composite) * count;
+    const wAt = at - 2 * count;
+    for (let j = 0; j < count; j++) frequency[j] += reach[at + j] * w[wAt + j];
+    if (!importance) continue;
+    const first = memberStart[composite];
+    const end = memberStart[composite + 1];
+    for (let member = first; member < end; member++) {
+      const qAt = (2 + memberRow[member]) * count;
+      let sumB = 0;
+      let sumQB = 0;
+      for (let j = 0; j < count; j++) {
+        let b = reach[at + j];
+        for (let other = first; other < end; other++) if (other !== member) b *= 1 - values[(2 + memberRow[other]) * count + j];
+        const weighted = weights[j] * b;
+        sumB += weighted;
+        sumQB += weighted * values[qAt + j];
+      }
+      birnbaumIntegral[memberVariable[member]] += sumB;
+      qTimesBirnbaumIntegral[memberVariable[member]] += sumQB;
+    }
   }
 }

@@ -64,7 +64,10 @@ describe('PFDavg, PFH and importance from one shared pass (fast-check, seeded)',
         const referenceFrequency = engine.frequencyAndImportance(kronrodOnPartition(reference.partition));
         const shared = engine.averages();
         expect(close(shared.pfdAvg, reference.pfdAvg)).toBe(true);
-        expect(close(shared.pfdRelativeError, reference.relativeError)).toBe(true);
+        // The error estimates are relative errors, here often at rounding level (1e-12) where the batch
+        // boundaries (a repair transient's decay is carried from time to time within a batch) change them
+        // in their own leading digits: they agree to 1e-12 absolute.
+        expect(Math.abs(shared.pfdRelativeError - reference.relativeError)).toBeLessThanOrEqual(RELATIVE);
         expect(Array.from(shared.partition)).toEqual(Array.from(reference.partition));
         expect(close(shared.pfh, referenceFrequency.pfh)).toBe(true);
         shared.averages.birnbaum.forEach((value, index) => expect(close(value, referenceFrequency.averages.birnbaum[index])).toBe(true));

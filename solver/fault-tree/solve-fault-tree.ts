@@ -192,7 +192,7 @@ export function solveFaultTree(model: FaultTreeModel, options: FaultTreeSolveOpt
   progress(1, 'done');
   return {
     method: 'fault-tree',
-    algorithm: `BDD, ${engine.nodeCount} nodes in ${engine.tree.modules.length} modules over ${variables.length} variables; adaptive Gauss-Kronrod (7/15) on ${average.partition.length - 1} intervals between ${engine.edges.length - 1} breakpoint segments`,
+    algorithm: `BDD, ${engine.nodeCount} nodes in ${engine.tree.modules.length} modules over ${variables.length} variables (${engine.diagram.compositeForms.length} OR modules of events evaluated as one sum of exponentials each); adaptive Gauss-Kronrod (7/15) on ${average.partition.length - 1} intervals between ${engine.edges.length - 1} breakpoint segments`,
     solverVersion,
     demand,
     missionHours: mission,
