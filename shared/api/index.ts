@@ -127,3 +127,4 @@ export * from './devices.js';
 export * from './reviews.js';
 export * from './annotations.js';
 export * from './audit.js';
+export * from './request-header.js';

@@ -8,6 +8,7 @@ import { addUserWithoutProject, PDF_BYTES, PNG_BYTES, transmitterFields } from '
 import { createTestApp, signedInAgent } from './helpers/test-app.js';
 import { openTestDatabase, resetDatabase, type TestDatabase } from './helpers/test-database.js';
 import { seedWorld, type World } from './helpers/world.js';
+import { APP_REQUEST_HEADER } from '../../shared/api/request-header.js';
 
 let database: TestDatabase;
 let app: Express;
@@ -192,7 +193,7 @@ describe('device library: evidence files', () => {
     const upload = await agent
       .post(`/api/devices/${id}/evidence`)
       .field('description', 'SIL certificate (invented)')
-      .attach('file', PDF_BYTES, { filename: 'certificate "QP-400".pdf', contentType: 'application/pdf' });
+      .set(APP_REQUEST_HEADER, '1').attach('file', PDF_BYTES, { filename: 'certificate "QP-400".pdf', contentType: 'application/pdf' });
     expect(upload.status).toBe(201);
     const detail = deviceDetail.parse(upload.body);
     expect(detail.evidence).toHaveLength(1);
@@ -217,7 +218,7 @@ describe('device library: evidence files', () => {
   it('refuses a file over 10 MB with 413 and stores nothing', async () => {
     const { agent, id } = await deviceWithAgent();
     const big = Buffer.concat([PDF_BYTES, Buffer.alloc(10 * 1024 * 1024, 0x20)]);
-    const upload = await agent.post(`/api/devices/${id}/evidence`).attach('file', big, { filename: 'big.pdf', contentType: 'application/pdf' });
+    const upload = await agent.post(`/api/devices/${id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', big, { filename: 'big.pdf', contentType: 'application/pdf' });
     expect(upload.status).toBe(413);
     expect(upload.body.error.message).toMatch(/at most 10 MB/);
     const rows = await database.db.execute(sql`select count(*)::int as n from device_evidence`);
@@ -226,27 +227,27 @@ describe('device library: evidence files', () => {
 
   it('refuses a declared type outside PDF/PNG/JPEG, and content that does not match its declared type', async () => {
     const { agent, id } = await deviceWithAgent();
-    const text = await agent.post(`/api/devices/${id}/evidence`).attach('file', Buffer.from('plain text'), { filename: 'notes.txt', contentType: 'text/plain' });
+    const text = await agent.post(`/api/devices/${id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', Buffer.from('plain text'), { filename: 'notes.txt', contentType: 'text/plain' });
     expect(text.status).toBe(400);
     expect(text.body.error.details.issues[0].path).toBe('file');
 
     const disguised = await agent
       .post(`/api/devices/${id}/evidence`)
-      .attach('file', Buffer.from('<html><script>alert(1)</script></html>'), { filename: 'report.pdf', contentType: 'application/pdf' });
+      .set(APP_REQUEST_HEADER, '1').attach('file', Buffer.from('<html><script>alert(1)</script></html>'), { filename: 'report.pdf', contentType: 'application/pdf' });
     expect(disguised.status).toBe(400);
     expect(disguised.body.error.message).toMatch(/PDF, PNG or JPEG/);
 
-    const pngAsPdf = await agent.post(`/api/devices/${id}/evidence`).attach('file', PNG_BYTES, { filename: 'scan.pdf', contentType: 'application/pdf' });
+    const pngAsPdf = await agent.post(`/api/devices/${id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', PNG_BYTES, { filename: 'scan.pdf', contentType: 'application/pdf' });
     expect(pngAsPdf.status).toBe(400);
     expect(pngAsPdf.body.error.message).toMatch(/declared as application\/pdf but its content is image\/png/);
 
-    const png = await agent.post(`/api/devices/${id}/evidence`).attach('file', PNG_BYTES, { filename: 'scan.png', contentType: 'image/png' });
+    const png = await agent.post(`/api/devices/${id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', PNG_BYTES, { filename: 'scan.png', contentType: 'image/png' });
     expect(png.status).toBe(201);
   });
 
   it('hides evidence from a user of no project (404), refuses uploads by a viewer (403), and lets an engineer remove it', async () => {
     const { agent, id } = await deviceWithAgent();
-    const upload = await agent.post(`/api/devices/${id}/evidence`).attach('file', PDF_BYTES, { filename: 'c.pdf', contentType: 'application/pdf' });
+    const upload = await agent.post(`/api/devices/${id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', PDF_BYTES, { filename: 'c.pdf', contentType: 'application/pdf' });
     const evidenceId = deviceDetail.parse(upload.body).evidence[0]!.id;
 
     await addUserWithoutProject(database.db);
@@ -255,7 +256,7 @@ describe('device library: evidence files', () => {
     expect((await request(app).get(`/api/devices/${id}/evidence/${evidenceId}`)).status).toBe(401);
 
     const viewer = await signedInAgent(app, 'viewer');
-    const refused = await viewer.post(`/api/devices/${id}/evidence`).attach('file', PDF_BYTES, { filename: 'v.pdf', contentType: 'application/pdf' });
+    const refused = await viewer.post(`/api/devices/${id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', PDF_BYTES, { filename: 'v.pdf', contentType: 'application/pdf' });
     expect(refused.status).toBe(403);
     expect((await viewer.delete(`/api/devices/${id}/evidence/${evidenceId}`)).status).toBe(403);
 

@@ -57,3 +57,12 @@ export function watchForPageErrors(page: Page, expectedStatuses: readonly number
   });
   return errors;
 }
+
+/** Signs in through the sign-in page and waits for the project list. */
+export async function signIn(page: Page, baseUrl: string, user: { readonly username: string; readonly password: string }): Promise<void> {
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('Username').fill(user.username);
+  await page.getByLabel('Password').fill(user.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(/\/projects$/);
+}

@@ -3,6 +3,7 @@ import { provideHttpClientTesting } from '@angular/common/http/testing';
 import { ErrorHandler, provideZonelessChangeDetection, type EnvironmentProviders, type Provider } from '@angular/core';
 import { ErrorStateMatcher, MATERIAL_ANIMATIONS, ShowOnDirtyErrorStateMatcher } from '@angular/material/core';
 import { provideRouter, withComponentInputBinding, type Routes } from '@angular/router';
+import { appRequestHeaderInterceptor } from '../http/app-request-header';
 import { AppErrorHandler } from '../errors/app-error-handler';
 import { httpErrorInterceptor } from '../errors/http-error-interceptor';
 
@@ -15,7 +16,7 @@ export function appTestProviders(routes: Routes = []): (Provider | EnvironmentPr
     provideZonelessChangeDetection(),
     { provide: ErrorHandler, useClass: AppErrorHandler },
     provideRouter(routes, withComponentInputBinding()),
-    provideHttpClient(withInterceptors([httpErrorInterceptor])),
+    provideHttpClient(withInterceptors([appRequestHeaderInterceptor, httpErrorInterceptor])),
     provideHttpClientTesting(),
     { provide: ErrorStateMatcher, useClass: ShowOnDirtyErrorStateMatcher },
     { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } },
