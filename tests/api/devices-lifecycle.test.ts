@@ -10,6 +10,7 @@ import { addUserWithoutProject, PDF_BYTES, transmitterFields } from './devices-h
 import { createTestApp, signedInAgent } from './helpers/test-app.js';
 import { openTestDatabase, resetDatabase, type TestDatabase } from './helpers/test-database.js';
 import { seedWorld, type World, type WorldUsername } from './helpers/world.js';
+import { APP_REQUEST_HEADER } from '../../shared/api/request-header.js';
 
 let database: TestDatabase;
 let app: Express;
@@ -128,7 +129,7 @@ describe('device library: archive, restore and delete', () => {
     const edit = await engineer.put(`/api/devices/${device.id}`).send({ ...transmitterFields({ lambdaDU: 9e-8 }), basedOnVersion: 1, changeNote: 'edit' });
     expect(edit.status).toBe(409);
     expect(edit.body.error.message).toContain('archived; restore it before you edit it');
-    const upload = await engineer.post(`/api/devices/${device.id}/evidence`).attach('file', PDF_BYTES, { filename: 'certificate.pdf', contentType: 'application/pdf' });
+    const upload = await engineer.post(`/api/devices/${device.id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', PDF_BYTES, { filename: 'certificate.pdf', contentType: 'application/pdf' });
     expect(upload.status).toBe(409);
     const csv = `maker,model,category,lambdaDU,lambdaDD,lambdaSU,lambdaSD,architectureType,hardwareFaultTolerance,sourceKind,sourceReference\n${transmitterFields().maker},${transmitterFields().model},transmitter,9e-8,3.6e-7,1e-7,2e-7,B,0,assessment-report,Report (invented)\n`;
     const preview = importPreview.parse((await engineer.post('/api/devices/import/preview').send({ csv, rateUnit: 'perHour' })).body);
@@ -170,7 +171,7 @@ describe('device library: archive, restore and delete', () => {
   it('deletes an unused record with its versions and evidence', async () => {
     const device = await createDevice();
     const engineer = await signedInAgent(app, 'engineer');
-    const upload = await engineer.post(`/api/devices/${device.id}/evidence`).attach('file', PDF_BYTES, { filename: 'certificate.pdf', contentType: 'application/pdf' });
+    const upload = await engineer.post(`/api/devices/${device.id}/evidence`).set(APP_REQUEST_HEADER, '1').attach('file', PDF_BYTES, { filename: 'certificate.pdf', contentType: 'application/pdf' });
     expect(upload.status).toBe(201);
     const removed = await engineer.delete(`/api/devices/${device.id}`);
     expect(removed.status).toBe(204);
