@@ -10,8 +10,9 @@ import { openTestDatabase, resetDatabase, testDatabaseUrl, type TestDatabase } f
 import { seedWorld, type World } from './helpers/world.js';
 
 // Robustness (issue 10): malformed model files and bodies posted to the import, draft-save and solve
-// routes. The rule is ours: a 4xx with a message, or an accepted change, never a 500; the server and its
-// solver workers stay up. Seeds are fixed so a failure replays; run counts keep the file well under a minute.
+// routes and as a new model. The rule is ours: a 4xx with a message, or an accepted change, never a 500; the
+// server and its solver workers stay up. Seeds are fixed so a failure replays; run counts keep the file well
+// under a minute. The device CSV import is fuzzed in fuzz-devices.test.ts.
 
 /** An invented 1oo2 pair of pressure switches on a fictional separator (rates per hour, times in hours). */
 const VALID_FILE: FaultTreeModel = {
@@ -109,6 +110,32 @@ describe('malformed input', () => {
         expectHandled(response.status, response.body, [200]);
       }),
       SETTINGS,
+    );
+  }, 60_000);
+
+  it('import as a new model: any body and any broken model file get a 4xx with a message, never a 500', async () => {
+    const createPath = `/api/projects/${world.projectA}/sifs/${world.sifDraft}/models`;
+    let created = 0;
+    await fc.assert(
+      fc.asyncProperty(fc.oneof(anyJson, fc.record({ file: fc.oneof(anyJson, mutatedFile) }), fc.record({ file: mutatedFile })), async (body) => {
+        const response = await sendJson('post', createPath, body);
+        if (response.status === 201) created += 1;
+        expectHandled(response.status, response.body, [201]);
+      }),
+      { ...SETTINGS, numRuns: 300 },
+    );
+    // Some mutations keep the file valid (a changed label, an extra layout key); they are imported.
+    expect(created).toBeGreaterThan(0);
+  }, 60_000);
+
+  it('import: raw bytes that are not JSON get a 400 naming the body', async () => {
+    await fc.assert(
+      fc.asyncProperty(fc.string({ unit: 'binary', maxLength: 400 }).filter((text) => text.trim() !== '' && !isJson(text)), async (text) => {
+        const response = await agent.post(`${modelPath}/import`).set('Content-Type', 'application/json').send(text);
+        expect(response.status).toBe(400);
+        expect(response.body.error.message).toContain('body');
+      }),
+      { ...SETTINGS, numRuns: 200 },
     );
   }, 60_000);
 
