@@ -201,7 +201,8 @@ export function attach(bdd: Bdd, root: number, table: FlatDiagram, variableAt: I
  * w, one row per table row from row 2 on: a timeline's lambdaDU (1 - q), an OR module's sum of its
  * members' lambdaDU times 1 - q, which is sum_i w_i prod_{j != i} (1 - q_j), the members' frequencies
  * through the module).
- * @param members also fill the timelines only OR modules' members have (for their importance).
+ * @param members also fill the timelines only OR modules' members have (for their importance); the OR
+ *   modules are then combined from them.
  */
 export function fillTable(
   diagram: FlatDiagram,
@@ -223,11 +224,31 @@ export function fillTable(
     const timeline = rows[index];
     evaluateEventTimeline(timeline, times, values, (2 + index) * count, w, fromLeft, index * count, ordered, steps.of(timeline.form.mu));
   }
-  const { compositeForms, compositeRate, firstComposite } = diagram;
-  compositeForms.forEach((form, composite) => {
+  const { compositeForms, compositeRate, firstComposite, memberStart, memberRow } = diagram;
+  for (let composite = 0; composite < compositeForms.length; composite++) {
+    const form = compositeForms[composite];
     const row = firstComposite + composite;
-    evaluateForm(form, times, values, row * count, compositeRate[composite], w, fromLeft, (row - 2) * count, ordered, steps.of(form.mu));
-  });
+    const out = row * count;
+    if (!members) {
+      evaluateForm(form, times, values, out, compositeRate[composite], w, fromLeft, (row - 2) * count, ordered, steps.of(form.mu));
+      continue;
+    }
+    // The members are filled already: their OR, 1 - prod(1 - q_i), costs less than the module's form.
+    const firstAt = (2 + memberRow[memberStart[composite]]) * count;
+    values.copyWithin(out, firstAt, firstAt + count);
+    for (let member = memberStart[composite] + 1; member < memberStart[composite + 1]; member++) {
+      const qAt = (2 + memberRow[member]) * count;
+      for (let j = 0; j < count; j++) {
+        const p = values[out + j];
+        values[out + j] = p + values[qAt + j] * (1 - p);
+      }
+    }
+    if (w) {
+      const rate = compositeRate[composite];
+      const wAt = out - 2 * count;
+      for (let j = 0; j < count; j++) w[wAt + j] = rate * (1 - values[out + j]);
+    }
+  }
 }
 
 /** The OR of independent events' timelines as one form (an OR module's q(t)). */
@@ -360,69 +381,189 @@ export function backwardIntegrals(
   importance = true,
 ): void {
   const { variable, source, low, high, testsModule, firstNode, firstComposite } = diagram;
+  if (ONES.length < count) ONES = new Float64Array(count).fill(1);
+  const ones = ONES;
   reach.fill(0, 0, diagram.size * count);
   reach.fill(1, diagram.root * count, diagram.root * count + count);
   for (let node = diagram.size - 1; node >= firstNode; node--) {
     const at = node * count;
-    const lowAt = low[node] * count;
-    const highAt = high[node] * count;
+    const lowRow = low[node];
+    const highRow = high[node];
     const qAt = source[node] * count;
-    let sumB = 0;
-    let sumQB = 0;
-    if (testsModule[node] === 1) {
-      for (let j = 0; j < count; j++) {
-        const r = reach[at + j];
-        if (r === 0) continue;
-        const qj = values[qAt + j];
-        reach[highAt + j] += r * qj;
-        reach[lowAt + j] += r * (1 - qj);
-        const b = r * (values[highAt + j] - values[lowAt + j]);
-        reach[qAt + j] += b;
-        const weighted = weights[j] * b;
-        sumB += weighted;
-        sumQB += weighted * qj;
-      }
-    } else {
-      const wAt = qAt - 2 * count;
-      for (let j = 0; j < count; j++) {
-        const r = reach[at + j];
-        if (r === 0) continue;
-        const qj = values[qAt + j];
-        reach[highAt + j] += r * qj;
-        reach[lowAt + j] += r * (1 - qj);
-        const b = r * (values[highAt + j] - values[lowAt + j]);
-        const weighted = weights[j] * b;
-        sumB += weighted;
-        sumQB += weighted * qj;
-        frequency[j] += b * w[wAt + j];
-      }
-    }
+    // A node testing a module adds B to that module's reach (B times a row of ones); one testing a
+    // variable adds B w to the frequency.
+    const module = testsModule[node] === 1;
+    const target = module ? reach : frequency;
+    const targetAt = module ? qAt : 0;
+    const factor = module ? ones : w;
+    const factorAt = module ? 0 : qAt - 2 * count;
+    const sums =
+      highRow === 1
+        ? sweepOr(values, reach, weights, target, targetAt, factor, factorAt, at, lowRow * count, qAt, count)
+        : lowRow === 0
+          ? sweepAnd(values, reach, weights, target, targetAt, factor, factorAt, at, highRow * count, qAt, count)
+          : sweepNode(values, reach, weights, target, targetAt, factor, factorAt, at, lowRow * count, highRow * count, qAt, count);
     if (importance) {
-      birnbaumIntegral[variable[node]] += sumB;
-      qTimesBirnbaumIntegral[variable[node]] += sumQB;
+      birnbaumIntegral[variable[node]] += sums[0];
+      qTimesBirnbaumIntegral[variable[node]] += sums[1];
     }
   }
-  const { memberStart, memberRow, memberVariable } = diagram;
+  const { memberStart } = diagram;
   for (let composite = 0; composite + 1 < memberStart.length; composite++) {
     const at = (firstComposite + composite) * count;
     const wAt = at - 2 * count;
     for (let j = 0; j < count; j++) frequency[j] += reach[at + j] * w[wAt + j];
-    if (!importance) continue;
-    const first = memberStart[composite];
-    const end = memberStart[composite + 1];
-    for (let member = first; member < end; member++) {
-      const qAt = (2 + memberRow[member]) * count;
-      let sumB = 0;
-      let sumQB = 0;
-      for (let j = 0; j < count; j++) {
-        let b = reach[at + j];
-        for (let other = first; other < end; other++) if (other !== member) b *= 1 - values[(2 + memberRow[other]) * count + j];
-        const weighted = weights[j] * b;
-        sumB += weighted;
-        sumQB += weighted * values[qAt + j];
-      }
-      birnbaumIntegral[memberVariable[member]] += sumB;
-      qTimesBirnbaumIntegral[memberVariable[member]] += sumQB;
-    }
+    if (importance) memberImportance(diagram, composite, values, reach, weights, count, birnbaumIntegral, qTimesBirnbaumIntegral);
   }
+}
+
+let memberScratch = new Float64Array(0);
+
+/**
+ * The members' Birnbaum importance through their OR module: B_i = reach prod_{k != i} (1 - q_k), from
+ * the products of the members before i (one row each) and a running product of those after.
+ */
+function memberImportance(
+  diagram: FlatDiagram,
+  composite: number,
+  values: Float64Array,
+  reach: Float64Array,
+  weights: Float64Array,
+  count: number,
+  birnbaumIntegral: Float64Array,
+  qTimesBirnbaumIntegral: Float64Array,
+): void {
+  const { memberStart, memberRow, memberVariable, firstComposite } = diagram;
+  const first = memberStart[composite];
+  const members = memberStart[composite + 1] - first;
+  const at = (firstComposite + composite) * count;
+  if (members === 2 || members === 3) {
+    // The usual channel modules, in one loop with the products in registers.
+    const q0At = (2 + memberRow[first]) * count;
+    const q1At = (2 + memberRow[first + 1]) * count;
+    const q2At = members === 3 ? (2 + memberRow[first + 2]) * count : -1;
+    let b0 = 0;
+    let b1 = 0;
+    let b2 = 0;
+    let qb0 = 0;
+    let qb1 = 0;
+    let qb2 = 0;
+    for (let j = 0; j < count; j++) {
+      const rw = reach[at + j] * weights[j];
+      const q0 = values[q0At + j];
+      const q1 = values[q1At + j];
+      const q2 = q2At < 0 ? 0 : values[q2At + j];
+      const w0 = rw * (1 - q1) * (1 - q2);
+      const w1 = rw * (1 - q0) * (1 - q2);
+      const w2 = rw * (1 - q0) * (1 - q1);
+      b0 += w0;
+      qb0 += w0 * q0;
+      b1 += w1;
+      qb1 += w1 * q1;
+      b2 += w2;
+      qb2 += w2 * q2;
+    }
+    birnbaumIntegral[memberVariable[first]] += b0;
+    qTimesBirnbaumIntegral[memberVariable[first]] += qb0;
+    birnbaumIntegral[memberVariable[first + 1]] += b1;
+    qTimesBirnbaumIntegral[memberVariable[first + 1]] += qb1;
+    if (members === 3) {
+      birnbaumIntegral[memberVariable[first + 2]] += b2;
+      qTimesBirnbaumIntegral[memberVariable[first + 2]] += qb2;
+    }
+    return;
+  }
+  if (memberScratch.length < (members + 1) * count) memberScratch = new Float64Array((members + 1) * count);
+  const before = memberScratch;
+  // before[i] = reach prod_{k < i} (1 - q_k); the last row then runs as the product of those after.
+  before.set(reach.subarray(at, at + count), 0);
+  for (let i = 1; i < members; i++) {
+    const qAt = (2 + memberRow[first + i - 1]) * count;
+    const from = (i - 1) * count;
+    const to = i * count;
+    for (let j = 0; j < count; j++) before[to + j] = before[from + j] * (1 - values[qAt + j]);
+  }
+  const after = members * count;
+  before.fill(1, after, after + count);
+  for (let i = members - 1; i >= 0; i--) {
+    const qAt = (2 + memberRow[first + i]) * count;
+    const row = i * count;
+    let sumB = 0;
+    let sumQB = 0;
+    for (let j = 0; j < count; j++) {
+      const qj = values[qAt + j];
+      const weighted = weights[j] * before[row + j] * before[after + j];
+      sumB += weighted;
+      sumQB += weighted * qj;
+      before[after + j] *= 1 - qj;
+    }
+    birnbaumIntegral[memberVariable[first + i]] += sumB;
+    qTimesBirnbaumIntegral[memberVariable[first + i]] += sumQB;
+  }
+}
+
+let ONES = new Float64Array(0);
+
+/** Scratch of the backward sweeps' two sums (sum_j weight_j B_j and sum_j weight_j q_j B_j). */
+const SUMS = new Float64Array(2);
+
+/**
+ * One node of the backward sweep, "if q then high else low": reach flows to both children; B = reach
+ * (P(high) - P(low)) times factor is added to target (see backwardIntegrals).
+ */
+function sweepNode(values: Float64Array, reach: Float64Array, weights: Float64Array, target: Float64Array, targetAt: number, factor: Float64Array, factorAt: number, at: number, lowAt: number, highAt: number, qAt: number, count: number): Float64Array {
+  let sumB = 0;
+  let sumQB = 0;
+  for (let j = 0; j < count; j++) {
+    const r = reach[at + j];
+    const qj = values[qAt + j];
+    reach[highAt + j] += r * qj;
+    reach[lowAt + j] += r * (1 - qj);
+    const b = r * (values[highAt + j] - values[lowAt + j]);
+    const weighted = weights[j] * b;
+    sumB += weighted;
+    sumQB += weighted * qj;
+    target[targetAt + j] += b * factor[factorAt + j];
+  }
+  SUMS[0] = sumB;
+  SUMS[1] = sumQB;
+  return SUMS;
+}
+
+/** A node whose high child is TRUE (an OR): no reach to pass to TRUE, and P(high) = 1. */
+function sweepOr(values: Float64Array, reach: Float64Array, weights: Float64Array, target: Float64Array, targetAt: number, factor: Float64Array, factorAt: number, at: number, lowAt: number, qAt: number, count: number): Float64Array {
+  let sumB = 0;
+  let sumQB = 0;
+  for (let j = 0; j < count; j++) {
+    const r = reach[at + j];
+    const qj = values[qAt + j];
+    reach[lowAt + j] += r * (1 - qj);
+    const b = r * (1 - values[lowAt + j]);
+    const weighted = weights[j] * b;
+    sumB += weighted;
+    sumQB += weighted * qj;
+    target[targetAt + j] += b * factor[factorAt + j];
+  }
+  SUMS[0] = sumB;
+  SUMS[1] = sumQB;
+  return SUMS;
+}
+
+/** A node whose low child is FALSE (an AND): no reach to pass to FALSE, and P(low) = 0. */
+function sweepAnd(values: Float64Array, reach: Float64Array, weights: Float64Array, target: Float64Array, targetAt: number, factor: Float64Array, factorAt: number, at: number, highAt: number, qAt: number, count: number): Float64Array {
+  let sumB = 0;
+  let sumQB = 0;
+  for (let j = 0; j < count; j++) {
+    const r = reach[at + j];
+    const qj = values[qAt + j];
+    reach[highAt + j] += r * qj;
+    const b = r * values[highAt + j];
+    const weighted = weights[j] * b;
+    sumB += weighted;
+    sumQB += weighted * qj;
+    target[targetAt + j] += b * factor[factorAt + j];
+  }
+  SUMS[0] = sumB;
+  SUMS[1] = sumQB;
+  return SUMS;
 }
