@@ -4,6 +4,7 @@ import { markovModel, type MarkovModel } from '../../shared/model-file.js';
 import { solveResult } from '../../shared/solve-result.js';
 import { ModelError } from '../common/model-error.js';
 import { generateModels } from '../generator/index.js';
+import { solveModel } from '../index.js';
 import { solveMarkovModel } from './index.js';
 
 const YEAR = 8760;
@@ -291,20 +292,6 @@ describe('Markov engine: Krylov steps for stiff sparse chains', () => {
     expect(Math.abs(krylov.pfdAvg - dense.pfdAvg) / dense.pfdAvg).toBeLessThan(1e-9);
     krylov.curve.pfd.forEach((value, point) => expect(Math.abs(value - dense.curve.pfd[point])).toBeLessThan(1e-9));
   });
-
-  it('stops with the signal reason when cancelled between its steps', () => {
-    const reason = new Error('cancelled by the user');
-    const controller = new AbortController();
-    expect(() =>
-      solveMarkovModel(repairable(), {
-        chainMethod: 'krylov',
-        signal: controller.signal,
-        onProgress: (fraction) => {
-          if (fraction > 0.3) controller.abort(reason);
-        },
-      }),
-    ).toThrow(reason);
-  });
 });
 
 describe('Markov engine: closed forms of periodically tested systems', () => {
@@ -340,6 +327,26 @@ describe('Markov engine: closed forms of periodically tested systems', () => {
       const result = solveMarkovModel(oneOutOfTwo(lambda, beta, tau), { chainMethod: method });
       expect(Math.abs(result.pfdAvg - exact) / exact).toBeLessThan(1e-8);
     }
+  });
+
+  it('the fault-tree engine gives the same closed forms for 1oo1 and 1oo2 with beta, to 1e-8 (the check against both)', () => {
+    // The closed forms of the two tests above (Rausand & Hoyland), now for the equivalent fault trees: one
+    // event, and two events under an AND gate in a beta-factor group.
+    const lambda = 5e-6;
+    const beta = 0.1;
+    const tau = YEAR;
+    const event = (id: string) => ({ id, lambdaDU: lambda, proofTest: { intervalHours: tau } });
+    const header = { format: 'proofline/model' as const, version: 1 as const, name: 'tree', kind: 'fault-tree' as const, mission: { hours: 10 * YEAR, demand: 'low' as const } };
+    const single = solveModel({ ...header, events: [event('A')], gates: [], top: 'A' });
+    const exactSingle = 1 - -Math.expm1(-lambda * tau) / (lambda * tau);
+    expect(Math.abs(single.pfdAvg - exactSingle) / exactSingle).toBeLessThan(1e-8);
+    expect(Math.abs(solveMarkovModel(oneOutOfOne(lambda, tau)).pfdAvg - single.pfdAvg) / single.pfdAvg).toBeLessThan(1e-8);
+    const pair = solveModel({ ...header, events: [event('A'), event('B')], gates: [{ id: 'G', type: 'and', inputs: ['A', 'B'] }], ccf: [{ id: 'CCF', members: ['A', 'B'], beta, model: 'beta' }], top: 'G' });
+    const a = (1 - beta) * lambda;
+    const b = beta * lambda;
+    const exactPair = 1 - ((2 * -Math.expm1(-(a + b) * tau)) / (a + b) - -Math.expm1(-(2 * a + b) * tau) / (2 * a + b)) / tau;
+    expect(Math.abs(pair.pfdAvg - exactPair) / exactPair).toBeLessThan(1e-8);
+    expect(Math.abs(solveMarkovModel(oneOutOfTwo(lambda, beta, tau)).pfdAvg - pair.pfdAvg) / pair.pfdAvg).toBeLessThan(1e-8);
   });
 });
 
@@ -511,18 +518,20 @@ describe('Markov engine: bad input and cancellation', () => {
     expect(markovModel.safeParse(repairable()).success).toBe(true);
   });
 
-  it('stops with the signal reason when cancelled between phases, and reports progress up to 1', () => {
-    const reason = new Error('cancelled by the user');
-    const controller = new AbortController();
-    expect(() =>
-      solveMarkovModel(repairable(), {
-        chainMethod: 'uniformization',
-        signal: controller.signal,
-        onProgress: (fraction) => {
-          if (fraction > 0.3) controller.abort(reason);
-        },
-      }),
-    ).toThrow(reason);
+  it('stops with the signal reason when cancelled between phases, each method, and reports progress up to 1', () => {
+    for (const method of METHODS) {
+      const reason = new Error(`cancelled by the user (${method})`);
+      const controller = new AbortController();
+      expect(() =>
+        solveMarkovModel(repairable(), {
+          chainMethod: method,
+          signal: controller.signal,
+          onProgress: (fraction) => {
+            if (fraction > 0.3) controller.abort(reason);
+          },
+        }),
+      ).toThrow(reason);
+    }
     const fractions: number[] = [];
     solveMarkovModel(repairable(), { onProgress: (fraction) => fractions.push(fraction) });
     expect(fractions[fractions.length - 1]).toBe(1);
