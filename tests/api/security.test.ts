@@ -1,3 +1,6 @@
+import { readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { Router, type Express } from 'express';
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
@@ -334,4 +337,65 @@ describe('route permissions', () => {
     // Every route for each of the eight callers, with one or two bodies.
     expect(checked).toBeGreaterThan(routes.length * 6);
   }, 120_000);
+});
+
+describe('SQL only through Drizzle parameters', () => {
+  // Issue 10: every value reaches PostgreSQL as a bound parameter. Drizzle's sql`` template and query builder
+  // bind every interpolated value; what could splice text into SQL is sql.raw, sql.identifier and a pool or
+  // client .query() with a template string. Each such place is listed here with why it is safe.
+  const ALLOWED: readonly { readonly file: string; readonly text: string; readonly why: string }[] = [
+    { file: 'server/db/schema/checks.ts', text: 'sql.raw(', why: 'CHECK constraints of the schema, from the shared enum constants, quotes doubled' },
+    { file: 'server/solves/solve-events.ts', text: 'query(`LISTEN ${SOLVE_EVENTS_CHANNEL}`)', why: 'a constant channel name; LISTEN takes no parameters' },
+  ];
+  const RISKY = [/sql\.raw\(/, /sql\.identifier\(/, /\.query\(\s*`[^`]*\$\{/, /\.query\(\s*['"][^'"]*['"]\s*\+/, /\.unsafe\(/];
+
+  it('finds no raw SQL text in the server beyond the listed, constant cases', () => {
+    const root = fileURLToPath(new URL('../../', import.meta.url));
+    const files: string[] = [];
+    const walk = (folder: string) => {
+      for (const entry of readdirSync(join(root, folder), { withFileTypes: true })) {
+        const path = `${folder}/${entry.name}`;
+        if (entry.isDirectory()) walk(path);
+        else if (entry.name.endsWith('.ts') && !entry.name.endsWith('.test.ts')) files.push(path);
+      }
+    };
+    walk('server');
+    expect(files.length).toBeGreaterThan(50);
+    const found: string[] = [];
+    for (const file of files) {
+      const lines = readFileSync(join(root, file), 'utf8').split('\n');
+      lines.forEach((line, index) => {
+        if (!RISKY.some((pattern) => pattern.test(line))) return;
+        if (ALLOWED.some((allowed) => allowed.file === file && line.includes(allowed.text))) return;
+        found.push(`${file}:${index + 1}: ${line.trim()}`);
+      });
+    }
+    expect(found, `raw SQL outside the listed cases:\n${found.join('\n')}`).toEqual([]);
+    // The scan itself finds what it looks for: each listed case is still there.
+    for (const allowed of ALLOWED) expect(readFileSync(join(root, allowed.file), 'utf8')).toContain(allowed.text);
+  });
+
+  it('stores and finds SQL-looking text as plain text, and the tables stay as they were', async () => {
+    const agent = await signedInAgent(app, 'lead');
+    const payloads = ["'; DROP TABLE users; --", "x' OR '1'='1", '%_\\', '"; SELECT pg_sleep(5); --', "Robert'); DELETE FROM sifs; --"];
+    const usersBefore = (await agent.get('/api/users')).body.length;
+    const sifsBefore = (await agent.get(`/api/projects/${world.projectA}/sifs`)).body.total;
+    expect(usersBefore).toBeGreaterThan(0);
+    expect(sifsBefore).toBeGreaterThan(0);
+    for (const payload of payloads) {
+      const search = await agent.get(`/api/projects/${world.projectA}/sifs`).query({ search: payload });
+      expect(search.status, payload).toBe(200);
+      expect(search.body.items, payload).toEqual([]);
+      const created = await agent.post('/api/projects').send({ name: `Check ${payload}`, description: payload });
+      expect(created.status, payload).toBe(201);
+      expect(created.body.name).toBe(`Check ${payload}`);
+      const devices = await agent.get('/api/devices').query({ search: payload });
+      expect(devices.status, payload).toBe(200);
+    }
+    // "%" and "_" are matched literally, not as LIKE wildcards: the search for "%_\" found nothing above.
+    expect((await agent.get('/api/users')).body.length).toBe(usersBefore);
+    expect((await agent.get(`/api/projects/${world.projectA}/sifs`)).body.total).toBe(sifsBefore);
+    const names = (await agent.get('/api/projects')).body.map((project: { name: string }) => project.name);
+    for (const payload of payloads) expect(names).toContain(`Check ${payload}`);
+  });
 });
