@@ -1,5 +1,5 @@
 import type { ChildProcess } from 'node:child_process';
-import { mkdtemp, readFile, writeFile } from 'node:fs/promises';
+import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
@@ -230,6 +230,7 @@ describe('the whole journey in a browser', () => {
       const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.getByRole('button', { name: 'Import' }).click()]);
       await chooser.setFiles(file);
       await page.getByText(`Imported ${TAG}.proofline.json`).waitFor();
+      await rm(folder, { recursive: true, force: true });
       await expect.poll(() => page.locator('[data-node="event:E1"]').textContent()).toContain(REIMPORTED_LABEL);
       expect(await page.locator('.title-row .muted').textContent()).not.toBe(versionBefore);
       await expect.poll(() => page.locator('[data-save-state]').textContent(), { timeout: 20_000 }).toBe('All changes saved');
