@@ -58,7 +58,7 @@ function plainPassRate(): number {
 }
 
 /** A stage's best time over RUNS runs, the machine's plain-pass rate just after it, and the time scaled to the reference rate. */
-function timed<T>(run: () => T, runs = RUNS): { value: T; seconds: number; figure: string } {
+function timed<T>(run: () => T, runs = RUNS): { value: T; seconds: number; scaled: number; figure: string } {
   let best = Infinity;
   let value = run();
   for (let index = 0; index < runs; index++) {
@@ -67,7 +67,8 @@ function timed<T>(run: () => T, runs = RUNS): { value: T; seconds: number; figur
     best = Math.min(best, (performance.now() - start) / 1000);
   }
   const rate = plainPassRate();
-  return { value, seconds: best, figure: `${best.toFixed(3)} s [machine ${rate.toExponential(2)} node evals/s; ${((best * rate) / REFERENCE_RATE).toFixed(3)} s at ${REFERENCE_RATE.toExponential(2)}/s]` };
+  const scaled = (best * rate) / REFERENCE_RATE;
+  return { value, seconds: best, scaled, figure: `${best.toFixed(3)} s [machine ${rate.toExponential(2)} node evals/s; ${scaled.toFixed(3)} s at ${REFERENCE_RATE.toExponential(2)}/s]` };
 }
 
 function plant(events: number, measureFixedGates: boolean): void {
@@ -90,9 +91,9 @@ function plant(events: number, measureFixedGates: boolean): void {
   console.log(`  BDD ${engine.nodeCount} nodes in ${engine.tree.modules.length} modules over ${engine.variables.variables.length} variables (${engine.variables.rows.length} distinct timelines); evaluated as ${engine.nodeRows} node rows and ${engine.diagram.compositeForms.length} OR modules filled as sums of exponentials; built in ${build.figure}`);
   console.log(`  PFD(t) at ${curve.value.hours.length} points (10,000 + breakpoints): ${curve.figure}`);
   console.log(`  PFDavg alone (adaptive Gauss-Kronrod, ${average.value.partition.length - 1} intervals, rel. error ${average.value.relativeError.toExponential(1)}): ${average.figure}`);
-  console.log(`  PFD(t) + PFDavg: ${(curve.seconds + average.seconds).toFixed(3)} s (target 0.3 s at the reference rate)`);
+  console.log(`  PFD(t) + PFDavg: ${(curve.seconds + average.seconds).toFixed(3)} s, ${(curve.scaled + average.scaled).toFixed(3)} s at the reference rate (target ${events > 2000 ? '0.6 s, twice the 2,000-event target' : '0.3 s'})`);
   console.log(
-    `  PFDavg + PFH + every event's Birnbaum, FV, RAW, RRW, one shared pass (${result.rule.times.length} quadrature times on ${result.partition.length - 1} intervals over ${engine.edges.length - 1} breakpoint segments, PFDavg rel. error ${result.pfdRelativeError.toExponential(1)}, PFH ${result.relativeError.toExponential(1)}): ${shared.figure} (PFH target 0.6 s)`,
+    `  PFDavg + PFH + every event's Birnbaum, FV, RAW, RRW, one shared pass (${result.rule.times.length} quadrature times on ${result.partition.length - 1} intervals over ${engine.edges.length - 1} breakpoint segments, PFDavg rel. error ${result.pfdRelativeError.toExponential(1)}, PFH ${result.relativeError.toExponential(1)}): ${shared.figure} (PFH target ${events > 2000 ? '1.2 s, twice the 2,000-event target' : '0.6 s'} at the reference rate)`,
   );
   const modules = gateIds.filter((id) => engine.tree.gatePlace.get(id)?.isModule).length;
   console.log(
@@ -116,10 +117,13 @@ function small(): void {
   for (const [name, n, k] of cases) {
     const model = votedGroup(n, k, { lambdaDU: 5e-7, lambdaDD: 1e-6, mttrHours: 8, intervalHours: 8760, missionHours: 87600, beta: 0.05, stagger: true });
     for (let i = 0; i < 20; i++) solveModel(model);
-    const runs = 50;
-    const start = performance.now();
-    for (let i = 0; i < runs; i++) solveModel(model);
-    const milliseconds = (performance.now() - start) / runs;
+    // Best of RUNS + 2 rounds of 20 solves (the slower rounds measure the load of the shared machine).
+    let milliseconds = Infinity;
+    for (let round = 0; round < RUNS + 2; round++) {
+      const start = performance.now();
+      for (let i = 0; i < 20; i++) solveModel(model);
+      milliseconds = Math.min(milliseconds, (performance.now() - start) / 20);
+    }
     const rate = plainPassRate();
     console.log(
       `${name} (staggered, beta, MTTR, 1,000 points): ${milliseconds.toFixed(2)} ms per solve [machine ${rate.toExponential(2)} node evals/s; ${((milliseconds * rate) / REFERENCE_RATE).toFixed(2)} ms at ${REFERENCE_RATE.toExponential(2)}/s]`,

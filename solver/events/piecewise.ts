@@ -310,17 +310,34 @@ export function evaluateForm(
   const { starts, startQ, termFirst, c, nu, direct } = form;
   const last = starts.length - 1;
   let j = 0;
+  let piece = -1;
   while (j < count) {
     const t = times[j];
     const left = fromLeft !== undefined && fromLeft[j] === 1;
-    const piece = pieceIndex(starts, t, left);
+    if (ordered && piece >= 0 && piece < last && (starts[piece + 1] < t || (!left && starts[piece + 1] === t)) && (piece + 1 === last || starts[piece + 2] > t || (left && starts[piece + 2] === t))) {
+      // In order, the next run is usually in the next piece.
+      piece++;
+    } else {
+      piece = pieceIndex(starts, t, left);
+    }
     const low = starts[piece];
     const high = piece < last ? starts[piece + 1] : Infinity;
-    // The run: times up to the next piece start (a left limit at it still belongs here), in order.
+    // The run: times up to the next piece start (a left limit at it still belongs here), in order; found
+    // by doubling steps from j, then bisection.
     let end = j + 1;
     if (ordered) {
+      let step = 1;
       let lo = end;
       let hi = count;
+      while (lo + step < count) {
+        const u = times[lo + step - 1];
+        if (!(u < high || (u === high && fromLeft !== undefined && fromLeft[lo + step - 1] === 1))) {
+          hi = lo + step - 1;
+          break;
+        }
+        lo += step;
+        step *= 2;
+      }
       while (lo < hi) {
         const middle = (lo + hi) >> 1;
         const u = times[middle];
@@ -338,32 +355,25 @@ export function evaluateForm(
     } else if (terms === 0) {
       for (let i = j; i < end; i++) qOut[offset + i] = q0;
     } else if (terms === 1 && nu[first] * (times[end - 1] - low) <= 0.015625) {
-      // |nu s| <= 1/64 on the whole run: expm1 from its series through s^7 (see expm1Small).
-      // Two times per step, and the series through s^5 when |nu s| <= 2^-10 (truncation below
-      // 2^-50 / 6! < 1e-18 relative), else through s^7.
+      // |nu s| <= 1/64 on the whole run: expm1 from its series through s^7 (see expm1Small), or through
+      // s^5 when |nu s| <= 2^-10 (truncation below 2^-50 / 6! < 1e-18 relative).
       const c0 = c[first];
       const nu0 = nu[first];
+      // Two times per step (a tenth faster than one).
       let i = j;
       const pairs = j + ((end - j) & ~1);
       if (nu0 * (times[end - 1] - low) <= 0.0009765625) {
         for (; i < pairs; i += 2) {
-          const y = -nu0 * (times[i] - low);
-          const z = -nu0 * (times[i + 1] - low);
-          qOut[offset + i] = q0 - c0 * (y * (1 + y * (0.5 + y * (1 / 6 + y * (1 / 24 + y * (1 / 120))))));
-          qOut[offset + i + 1] = q0 - c0 * (z * (1 + z * (0.5 + z * (1 / 6 + z * (1 / 24 + z * (1 / 120))))));
+          qOut[offset + i] = q0 - c0 * series5(-nu0 * (times[i] - low));
+          qOut[offset + i + 1] = q0 - c0 * series5(-nu0 * (times[i + 1] - low));
         }
       } else {
         for (; i < pairs; i += 2) {
-          const y = -nu0 * (times[i] - low);
-          const z = -nu0 * (times[i + 1] - low);
-          qOut[offset + i] = q0 - c0 * (y * (1 + y * (0.5 + y * (1 / 6 + y * (1 / 24 + y * (1 / 120 + y * (1 / 720 + y * (1 / 5040))))))));
-          qOut[offset + i + 1] = q0 - c0 * (z * (1 + z * (0.5 + z * (1 / 6 + z * (1 / 24 + z * (1 / 120 + z * (1 / 720 + z * (1 / 5040))))))));
+          qOut[offset + i] = q0 - c0 * series7(-nu0 * (times[i] - low));
+          qOut[offset + i + 1] = q0 - c0 * series7(-nu0 * (times[i + 1] - low));
         }
       }
-      for (; i < end; i++) {
-        const y = -nu0 * (times[i] - low);
-        qOut[offset + i] = q0 - c0 * (y * (1 + y * (0.5 + y * (1 / 6 + y * (1 / 24 + y * (1 / 120 + y * (1 / 720 + y * (1 / 5040))))))));
-      }
+      if (i < end) qOut[offset + i] = q0 - c0 * series7(-nu0 * (times[i] - low));
     } else if (terms === 1) {
       const c0 = c[first];
       const nu0 = nu[first];
@@ -382,8 +392,12 @@ export function repairSteps(times: Float64Array, mu: number, out = new Float64Ar
   return out;
 }
 
-/** A repair transient's e^{-mu s} is recomputed after this many steps of its product, bounding its drift to ~32 roundings. */
-const REANCHOR_STEPS = 32;
+/**
+ * A repair transient's e^{-mu s} is recomputed after this many steps of its product (each step one
+ * rounding of the product and one of the step, so the drift stays below ~1e-14 relative; an exponential
+ * costs as much as some thirty steps).
+ */
+const REANCHOR_STEPS = 64;
 
 /**
  * Piece k's sum of several terms at times[j..end-1]. Where mu s > 1/4 and every term's small exponent
@@ -409,8 +423,23 @@ function evaluateTerms(form: PiecewiseForm, piece: number, times: Float64Array, 
     }
     return;
   }
+  // Through s^5 when every small exponent stays within 2^-10 on the run, else through s^7.
+  let quick = true;
+  for (let m = first; m < stop; m++) if (rest[m] * longest > 0.0009765625) quick = false;
+  // Within the first quarter of a repair time each term is its own expm1 (there e^{-nu s} - 1 is small
+  // and the split would cancel); the times are in order, so those come first in the run.
+  const early = low + 0.25 / mu;
+  let split = j;
+  while (split < end && times[split] <= early) {
+    const s = times[split] - low;
+    let value = q0;
+    for (let m = first; m < stop; m++) value -= c[m] * expm1Small(-nu[m] * s);
+    qOut[offset + split] = value;
+    split++;
+  }
+  if (split === end) return;
   const shared = steps as Float64Array;
-  let decay = Math.exp(-mu * (times[j] - low));
+  let decay = Math.exp(-mu * (times[split] - low));
   let taken = 0;
   if (stop - first === 2 && muPower[first] === 0 && muPower[first + 1] === 1) {
     // One repair transient (the usual case): the steady term and the transient term.
@@ -418,33 +447,33 @@ function evaluateTerms(form: PiecewiseForm, piece: number, times: Float64Array, 
     const x0 = rest[first];
     const c1 = c[first + 1];
     const x1 = rest[first + 1];
-    const nu1 = nu[first + 1];
-    for (let i = j; i < end; i++) {
-      const s = times[i] - low;
-      if (i > j) {
-        if (++taken === REANCHOR_STEPS) {
-          decay = Math.exp(-mu * s);
-          taken = 0;
-        } else {
-          decay *= shared[i];
+    // In blocks of REANCHOR_STEPS times: e^{-mu s} computed at the block's first time, then carried.
+    for (let block = split; block < end; block += REANCHOR_STEPS) {
+      const stopAt = Math.min(end, block + REANCHOR_STEPS);
+      let carried = Math.exp(-mu * (times[block] - low));
+      if (quick) {
+        for (let i = block; i < stopAt; i++) {
+          if (i > block) carried *= shared[i];
+          const s = times[i] - low;
+          const y0 = -x0 * s;
+          const y1 = -x1 * s;
+          const steady = y0 * (1 + y0 * (0.5 + y0 * (1 / 6 + y0 * (1 / 24 + y0 * (1 / 120)))));
+          const own = y1 * (1 + y1 * (0.5 + y1 * (1 / 6 + y1 * (1 / 24 + y1 * (1 / 120)))));
+          qOut[offset + i] = q0 - c0 * steady - c1 * (carried * (1 + own) - 1);
+        }
+      } else {
+        for (let i = block; i < stopAt; i++) {
+          if (i > block) carried *= shared[i];
+          const s = times[i] - low;
+          qOut[offset + i] = q0 - c0 * series7(-x0 * s) - c1 * (carried * (1 + series7(-x1 * s)) - 1);
         }
       }
-      const y0 = -x0 * s;
-      const steady = y0 * (1 + y0 * (0.5 + y0 * (1 / 6 + y0 * (1 / 24 + y0 * (1 / 120 + y0 * (1 / 720 + y0 * (1 / 5040)))))));
-      let transient: number;
-      if (mu * s <= 0.25) {
-        transient = expm1Small(-nu1 * s);
-      } else {
-        const y1 = -x1 * s;
-        transient = decay * (1 + y1 * (1 + y1 * (0.5 + y1 * (1 / 6 + y1 * (1 / 24 + y1 * (1 / 120 + y1 * (1 / 720 + y1 * (1 / 5040)))))))) - 1;
-      }
-      qOut[offset + i] = q0 - c0 * steady - c1 * transient;
     }
     return;
   }
-  for (let i = j; i < end; i++) {
+  for (let i = split; i < end; i++) {
     const s = times[i] - low;
-    if (i > j) {
+    if (i > split) {
       if (++taken === REANCHOR_STEPS) {
         decay = Math.exp(-mu * s);
         taken = 0;
@@ -452,18 +481,27 @@ function evaluateTerms(form: PiecewiseForm, piece: number, times: Float64Array, 
         decay *= shared[i];
       }
     }
+    // Powers of e^{-mu s} up to the fourth (two or more repair transients at once give the higher ones).
+    const decay2 = decay * decay;
+    const decay3 = decay2 * decay;
+    const decay4 = decay2 * decay2;
     let value = q0;
-    if (mu * s <= 0.25) {
-      for (let m = first; m < stop; m++) value -= c[m] * expm1Small(-nu[m] * s);
-    } else {
-      for (let m = first; m < stop; m++) {
-        const y = -rest[m] * s;
-        const small = y * (1 + y * (0.5 + y * (1 / 6 + y * (1 / 24 + y * (1 / 120 + y * (1 / 720 + y * (1 / 5040)))))));
-        const power = muPower[m];
-        if (power === 0) value -= c[m] * small;
-        else value -= c[m] * ((power === 1 ? decay : power === 2 ? decay * decay : decay ** power) * (1 + small) - 1);
-      }
+    for (let m = first; m < stop; m++) {
+      const small = quick ? series5(-rest[m] * s) : series7(-rest[m] * s);
+      const power = muPower[m];
+      if (power === 0) value -= c[m] * small;
+      else value -= c[m] * ((power === 1 ? decay : power === 2 ? decay2 : power === 3 ? decay3 : power === 4 ? decay4 : decay ** power) * (1 + small) - 1);
     }
     qOut[offset + i] = value;
   }
+}
+
+/** e^y - 1 through y^5/5! (truncation below 1e-18 relative for |y| <= 2^-10). */
+function series5(y: number): number {
+  return y * (1 + y * (0.5 + y * (1 / 6 + y * (1 / 24 + y * (1 / 120)))));
+}
+
+/** e^y - 1 through y^7/7! (truncation below 1e-17 relative for |y| <= 1/64, see expm1Small). */
+function series7(y: number): number {
+  return y * (1 + y * (0.5 + y * (1 / 6 + y * (1 / 24 + y * (1 / 120 + y * (1 / 720 + y * (1 / 5040)))))));
 }

@@ -222,7 +222,8 @@ export function fillTable(
   for (let index = 0; index < rows.length; index++) {
     if (used[index] === 0 || (used[index] === 2 && !members)) continue;
     const timeline = rows[index];
-    evaluateEventTimeline(timeline, times, values, (2 + index) * count, w, fromLeft, index * count, ordered, steps.of(timeline.form.mu));
+    // Only the timelines a node reads need their frequency (members count through their OR module's).
+    evaluateEventTimeline(timeline, times, values, (2 + index) * count, used[index] === 1 ? w : undefined, fromLeft, index * count, ordered, steps.of(timeline.form.mu));
   }
   const { compositeForms, compositeRate, firstComposite, memberStart, memberRow } = diagram;
   for (let composite = 0; composite < compositeForms.length; composite++) {
@@ -234,13 +235,27 @@ export function fillTable(
       continue;
     }
     // The members are filled already: their OR, 1 - prod(1 - q_i), costs less than the module's form.
-    const firstAt = (2 + memberRow[memberStart[composite]]) * count;
-    values.copyWithin(out, firstAt, firstAt + count);
-    for (let member = memberStart[composite] + 1; member < memberStart[composite + 1]; member++) {
-      const qAt = (2 + memberRow[member]) * count;
+    const first = memberStart[composite];
+    const size = memberStart[composite + 1] - first;
+    const q0At = (2 + memberRow[first]) * count;
+    const q1At = (2 + memberRow[first + 1]) * count;
+    if (size === 2 || size === 3) {
+      // In one loop (the usual channel modules).
+      const q2At = size === 3 ? (2 + memberRow[first + 2]) * count : -1;
       for (let j = 0; j < count; j++) {
-        const p = values[out + j];
-        values[out + j] = p + values[qAt + j] * (1 - p);
+        let p = values[q0At + j];
+        p += values[q1At + j] * (1 - p);
+        if (q2At >= 0) p += values[q2At + j] * (1 - p);
+        values[out + j] = p;
+      }
+    } else {
+      values.copyWithin(out, q0At, q0At + count);
+      for (let member = first + 1; member < first + size; member++) {
+        const qAt = (2 + memberRow[member]) * count;
+        for (let j = 0; j < count; j++) {
+          const p = values[out + j];
+          values[out + j] = p + values[qAt + j] * (1 - p);
+        }
       }
     }
     if (w) {
@@ -411,7 +426,8 @@ export function backwardIntegrals(
   const { variable, source, low, high, testsModule, firstNode, firstComposite } = diagram;
   if (ONES.length < count) ONES = new Float64Array(count).fill(1);
   const ones = ONES;
-  reach.fill(0, 0, diagram.size * count);
+  // Only OR-module and node rows receive reach (and the FALSE row, never read).
+  reach.fill(0, firstComposite * count, diagram.size * count);
   reach.fill(1, diagram.root * count, diagram.root * count + count);
   for (let node = diagram.size - 1; node >= firstNode; node--) {
     const at = node * count;
