@@ -15,7 +15,7 @@ const megabytes = (bytes: number) => `${(bytes / 1024 / 1024).toFixed(0)} MB`;
 /** The reference speed of a plain typed-array BDD pass on this kind of machine (issue 3: 2.5-3e8 per second). */
 const REFERENCE_RATE = 2.75e8;
 /** Each figure is the best of this many runs: on a shared machine the slowest runs measure the load. */
-const RUNS = 3;
+const RUNS = 5;
 
 /**
  * The machine's speed right now on a plain typed-array pass (node evaluations per second): a synthetic

@@ -359,21 +359,8 @@ export function evaluateForm(
       // s^5 when |nu s| <= 2^-10 (truncation below 2^-50 / 6! < 1e-18 relative).
       const c0 = c[first];
       const nu0 = nu[first];
-      // Two times per step (a tenth faster than one).
-      let i = j;
-      const pairs = j + ((end - j) & ~1);
-      if (nu0 * (times[end - 1] - low) <= 0.0009765625) {
-        for (; i < pairs; i += 2) {
-          qOut[offset + i] = q0 - c0 * series5(-nu0 * (times[i] - low));
-          qOut[offset + i + 1] = q0 - c0 * series5(-nu0 * (times[i + 1] - low));
-        }
-      } else {
-        for (; i < pairs; i += 2) {
-          qOut[offset + i] = q0 - c0 * series7(-nu0 * (times[i] - low));
-          qOut[offset + i + 1] = q0 - c0 * series7(-nu0 * (times[i + 1] - low));
-        }
-      }
-      if (i < end) qOut[offset + i] = q0 - c0 * series7(-nu0 * (times[i] - low));
+      if (nu0 * (times[end - 1] - low) <= 0.0009765625) singleTerm5(times, j, end, qOut, offset, q0, c0, nu0, low);
+      else singleTerm7(times, j, end, qOut, offset, q0, c0, nu0, low);
     } else if (terms === 1) {
       const c0 = c[first];
       const nu0 = nu[first];
@@ -504,4 +491,28 @@ function series5(y: number): number {
 /** e^y - 1 through y^7/7! (truncation below 1e-17 relative for |y| <= 1/64, see expm1Small). */
 function series7(y: number): number {
   return y * (1 + y * (0.5 + y * (1 / 6 + y * (1 / 24 + y * (1 / 120 + y * (1 / 720 + y * (1 / 5040)))))));
+}
+
+/**
+ * q0 - c0 expm1(-nu0 (t - low)) at times[j..end-1] through the series to s^5 (|nu0 s| <= 2^-10 on the run).
+ * The loops live in small functions of their own, where the compiler keeps them tight, and take two
+ * times per step.
+ */
+function singleTerm5(times: Float64Array, j: number, end: number, qOut: Float64Array, offset: number, q0: number, c0: number, nu0: number, low: number): void {
+  let i = j;
+  for (const pairs = j + ((end - j) & ~1); i < pairs; i += 2) {
+    qOut[offset + i] = q0 - c0 * series5(-nu0 * (times[i] - low));
+    qOut[offset + i + 1] = q0 - c0 * series5(-nu0 * (times[i + 1] - low));
+  }
+  if (i < end) qOut[offset + i] = q0 - c0 * series5(-nu0 * (times[i] - low));
+}
+
+/** As singleTerm5, through s^7 (|nu0 s| <= 1/64 on the run). */
+function singleTerm7(times: Float64Array, j: number, end: number, qOut: Float64Array, offset: number, q0: number, c0: number, nu0: number, low: number): void {
+  let i = j;
+  for (const pairs = j + ((end - j) & ~1); i < pairs; i += 2) {
+    qOut[offset + i] = q0 - c0 * series7(-nu0 * (times[i] - low));
+    qOut[offset + i + 1] = q0 - c0 * series7(-nu0 * (times[i + 1] - low));
+  }
+  if (i < end) qOut[offset + i] = q0 - c0 * series7(-nu0 * (times[i] - low));
 }

@@ -257,7 +257,7 @@ export class FaultTreeEngine {
     const top = new Float64Array(times.length);
     const diagram = this.diagram;
     const timelineRows = this.variables.rows.length;
-    const batch = Math.max(8, Math.floor(this.batch / 2));
+    const batch = this.batch;
     const rows = fixedGates.reduce((most, gate) => Math.max(most, gate.failed.size, gate.working.size), diagram.size);
     const values = this.scratch(0, rows * batch);
     const reach = this.scratch(1, diagram.size * batch);
