@@ -271,11 +271,6 @@ export class FaultTreeEngine {
       top.set(forwardPass(diagram, values, count), start);
       const batchWeights = weights.subarray(start, start + count);
       backwardIntegrals(diagram, values, w, count, reach, batchWeights, birnbaumIntegral, qTimesBirnbaumIntegral, frequency.subarray(start, start + count));
-      // The top module is the top itself: dP(top)/dP(top) = 1.
-      for (let j = 0; j < count; j++) {
-        birnbaumIntegral[extended - 1] += batchWeights[j];
-        qTimesBirnbaumIntegral[extended - 1] += batchWeights[j] * top[start + j];
-      }
       onCutSetBatch?.(values.subarray(2 * count, (2 + timelineRows) * count), count, batchWeights, start);
       fixedGates.forEach((gate, index) => {
         const moduleAt = diagram.moduleRoots[gate.module] * count;

@@ -35,6 +35,8 @@ export interface FlatDiagram {
   readonly usedRows: Uint8Array;
   /** Diagram nodes of the modules, OR modules' chains included (the diagram's size). */
   readonly diagramNodes: number;
+  /** Model variables; module m is variable variableCount + m. */
+  readonly variableCount: number;
   /** Per node row: the variable tested (a model variable, or variable count + module index). */
   readonly variable: Int32Array;
   readonly source: Int32Array;
@@ -151,8 +153,20 @@ export function flatten(bdd: Bdd, modules: readonly DiagramModule[], variableAt:
     low[row] = rowOfNode.get(bdd.lowOf(node)) as number;
     high[row] = rowOfNode.get(bdd.highOf(node)) as number;
   });
+  // A node "if module M then TRUE else FALSE" (the last of a chain over modules, or a module that is just
+  // its child) has M's own values and reach: it gets no row, those who read it read M's row instead.
+  const dropped = (row: number) => row >= firstNode && testsModule[row] === 1 && low[row] === 0 && high[row] === 1;
+  const target = new Int32Array(size);
+  let kept = firstNode;
+  for (let row = 0; row < size; row++) target[row] = row < firstNode ? row : dropped(row) ? target[source[row]] : kept++;
+  const keep = <T extends Int32Array | Uint8Array>(array: T, map: boolean): T => {
+    const out = new (array.constructor as new (length: number) => T)(kept);
+    for (let row = 0; row < size; row++) if (!dropped(row)) out[target[row]] = map && array[row] >= 0 ? target[array[row]] : array[row];
+    return out;
+  };
+  for (const [node, row] of rowOfNode) rowOfNode.set(node, target[row]);
   return {
-    size,
+    size: kept,
     firstComposite,
     firstNode,
     memberStart,
@@ -162,13 +176,14 @@ export function flatten(bdd: Bdd, modules: readonly DiagramModule[], variableAt:
     compositeForms,
     usedRows,
     diagramNodes,
-    variable,
-    source,
-    low,
-    high,
-    testsModule,
-    moduleRoots,
-    root: moduleRoots[modules.length - 1],
+    variableCount,
+    variable: keep(variable, false),
+    source: keep(source, true),
+    low: keep(low, true),
+    high: keep(high, true),
+    testsModule: keep(testsModule, false),
+    moduleRoots: moduleRoots.map((row) => target[row]),
+    root: target[moduleRoots[modules.length - 1]],
     rowOfNode,
   };
 }
@@ -447,9 +462,25 @@ export function backwardIntegrals(
         : lowRow === 0
           ? sweepAnd(values, reach, weights, target, targetAt, factor, factorAt, at, highRow * count, qAt, count)
           : sweepNode(values, reach, weights, target, targetAt, factor, factorAt, at, lowRow * count, highRow * count, qAt, count);
-    if (importance) {
+    if (importance && !module) {
       birnbaumIntegral[variable[node]] += sums[0];
       qTimesBirnbaumIntegral[variable[node]] += sums[1];
+    }
+  }
+  if (importance) {
+    // A module's Birnbaum importance dP(top)/dP(module) is the reach its root row has gathered.
+    const { moduleRoots, variableCount } = diagram;
+    for (let index = 0; index < moduleRoots.length; index++) {
+      const at = moduleRoots[index] * count;
+      let sumB = 0;
+      let sumQB = 0;
+      for (let j = 0; j < count; j++) {
+        const weighted = weights[j] * reach[at + j];
+        sumB += weighted;
+        sumQB += weighted * values[at + j];
+      }
+      birnbaumIntegral[variableCount + index] += sumB;
+      qTimesBirnbaumIntegral[variableCount + index] += sumQB;
     }
   }
   const { memberStart } = diagram;
