@@ -458,6 +458,32 @@ function evaluateTerms(form: PiecewiseForm, piece: number, times: Float64Array, 
     }
     return;
   }
+  if (stop - first === 4 && muPower[first] === 0 && muPower[first + 1] === 1 && muPower[first + 2] === 1 && muPower[first + 3] === 2) {
+    // Two repair transients at once (two items tested together): the steady term, one term per
+    // transient, and their product.
+    const c0 = c[first];
+    const c1 = c[first + 1];
+    const c2 = c[first + 2];
+    const c3 = c[first + 3];
+    const x0 = rest[first];
+    const x1 = rest[first + 1];
+    const x2 = rest[first + 2];
+    const x3 = rest[first + 3];
+    for (let block = split; block < end; block += REANCHOR_STEPS) {
+      const stopAt = Math.min(end, block + REANCHOR_STEPS);
+      let carried = Math.exp(-mu * (times[block] - low));
+      for (let i = block; i < stopAt; i++) {
+        if (i > block) carried *= shared[i];
+        const s = times[i] - low;
+        const e0 = quick ? series5(-x0 * s) : series7(-x0 * s);
+        const e1 = quick ? series5(-x1 * s) : series7(-x1 * s);
+        const e2 = quick ? series5(-x2 * s) : series7(-x2 * s);
+        const e3 = quick ? series5(-x3 * s) : series7(-x3 * s);
+        qOut[offset + i] = q0 - c0 * e0 - c1 * (carried * (1 + e1) - 1) - c2 * (carried * (1 + e2) - 1) - c3 * (carried * carried * (1 + e3) - 1);
+      }
+    }
+    return;
+  }
   for (let i = split; i < end; i++) {
     const s = times[i] - low;
     if (i > split) {
